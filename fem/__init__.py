@@ -1,0 +1,1 @@
+"""Axisymmetric elastic contact solve (scikit-fem)."""

@@ -1,0 +1,1 @@
+"""Parametric (r, z) clutch sections meshed with gmsh."""
