@@ -1,1 +1,28 @@
-"""Parametric (r, z) clutch sections meshed with gmsh."""
+"""Parametric (r, z) clutch sections, meshed with gmsh and read through meshio.
+
+Public API: :func:`build_section` (case -> Section), :func:`mesh_section`
+(Section -> SectionMesh), :func:`write_mesh` and :func:`section_picture`.
+A new case kind is one function ``case -> Section`` added to ``SECTION_BUILDERS``.
+"""
+from .cone import cone_section
+from .mesher import SectionMesh, face_node_count, mesh_section
+from .output import section_picture, write_mesh
+from .plates import plate_section
+from .section import Body, FrictionInterface, GeometryError, Region, Section, check_section
+
+SECTION_BUILDERS = {"cone": cone_section, "plate": plate_section}
+
+
+def build_section(case) -> Section:
+    """The section of a validated case, with the case's mesh controls attached."""
+    section = SECTION_BUILDERS[case.kind](case)
+    section.face_size = case.mesh.interface_element_size
+    section.edge_size = case.mesh.edge_element_size
+    section.body_size = case.mesh.element_size
+    section.element_order = case.mesh.element_order
+    return section
+
+
+__all__ = ["Body", "FrictionInterface", "GeometryError", "Region", "Section", "SectionMesh",
+           "SECTION_BUILDERS", "build_section", "check_section", "cone_section", "face_node_count",
+           "mesh_section", "plate_section", "section_picture", "write_mesh"]

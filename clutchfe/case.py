@@ -1,0 +1,358 @@
+"""Read a case file (TOML) into typed, validated, defaulted plain data.
+
+Every problem is collected (not just the first), one line each, naming the key,
+the value and what is allowed; the command line prints them and exits 2.
+"""
+from __future__ import annotations
+
+import difflib
+import hashlib
+import math
+import tomllib
+from dataclasses import dataclass, make_dataclass, field
+from pathlib import Path
+from typing import Any
+
+from .schema import SCHEMA, Key, describe_range
+
+
+class CaseError(Exception):
+    """Invalid input: ``problems`` holds one message per problem."""
+
+    def __init__(self, problems: list[str]):
+        super().__init__("\n".join(problems))
+        self.problems = problems
+
+
+def _table_class(table: str):
+    fields = [(name, Any, field(default=None)) for name in SCHEMA[table]]
+    return make_dataclass(f"{table.title().replace('_', '')}Table", fields, frozen=True)
+
+
+_TABLE_CLASSES = {t: _table_class(t) for t in SCHEMA if t}
+
+
+@dataclass(frozen=True)
+class Case:
+    """A validated case.  Tables are frozen dataclasses: ``case.interface.inner_radius``."""
+
+    kind: str
+    name: str
+    description: str
+    interface: Any
+    load: Any
+    lining: Any
+    cone: Any
+    cup: Any
+    pressure_plate: Any
+    disc: Any
+    counter_plate: Any
+    separator_plate: Any
+    support: Any
+    misalignment: Any
+    requirement: Any
+    mesh: Any
+    input_sha256: str = ""
+    source: str = ""
+    warnings: tuple = ()
+
+    @property
+    def disc_count(self) -> int:
+        return self.interface.friction_surfaces // 2 if self.kind == "plate" else 0
+
+    def flat(self) -> dict[str, Any]:
+        """All keys as ``table.key -> value`` (the inputs table of a report)."""
+        out = {"kind": self.kind, "name": self.name}
+        for table in _TABLE_CLASSES:
+            obj = getattr(self, table)
+            for key in SCHEMA[table]:
+                value = getattr(obj, key)
+                if value is not None:
+                    out[f"{table}.{key}"] = value
+        return out
+
+
+def load_case(path: str | Path) -> Case:
+    path = Path(path)
+    try:
+        raw = path.read_bytes()
+    except OSError as exc:
+        raise CaseError([f"{path}: cannot read the case file ({exc.strerror})"]) from None
+    try:
+        data = tomllib.loads(raw.decode("utf-8"))
+    except UnicodeDecodeError:
+        raise CaseError([f"{path}: not a UTF-8 text file"]) from None
+    except tomllib.TOMLDecodeError as exc:
+        raise CaseError([f"{path}: malformed TOML: {exc}"]) from None
+    return case_from_dict(data, default_name=path.stem, sha256=hashlib.sha256(raw).hexdigest(),
+                          source=str(path))
+
+
+def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", source: str = "") -> Case:
+    problems: list[str] = []
+    flat = _flatten(data, problems)
+    kind = flat.get("kind")
+    if kind not in ("cone", "plate"):
+        problems.append(f"kind = {kind!r}: allowed: 'cone' or 'plate'" if kind is not None
+                        else "kind: missing; allowed: 'cone' or 'plate'")
+        raise CaseError(problems)
+    values = _typed_values(flat, kind, problems)
+    if problems:
+        raise CaseError(problems)
+    _fill_defaults(values, kind, problems)
+    if problems:
+        raise CaseError(problems)
+    warnings = _cross_checks(values, kind, problems)
+    if problems:
+        raise CaseError(problems)
+    name = values.get("name") or default_name
+    tables = {t: cls(**{k: values.get(f"{t}.{k}") for k in SCHEMA[t]}) for t, cls in _TABLE_CLASSES.items()}
+    return Case(kind=kind, name=name, description=values.get("description") or "", input_sha256=sha256,
+                source=source, warnings=tuple(warnings), **tables)
+
+
+def _flatten(data: dict, problems: list[str]) -> dict[str, Any]:
+    flat: dict[str, Any] = {}
+    tables = [t for t in SCHEMA if t]
+    for key, value in data.items():
+        if isinstance(value, dict):
+            if key not in SCHEMA or not key:
+                problems.append(f"[{key}]: unknown table{_hint(key, tables)}; allowed tables: "
+                                + ", ".join(tables))
+                continue
+            for sub, subval in value.items():
+                if sub not in SCHEMA[key]:
+                    problems.append(f"{key}.{sub}: unknown key{_hint(sub, list(SCHEMA[key]), key)}; "
+                                    f"allowed in [{key}]: " + ", ".join(SCHEMA[key]))
+                    continue
+                flat[f"{key}.{sub}"] = subval
+        elif key in SCHEMA[""]:
+            flat[key] = value
+        else:
+            where = [t for t in tables if key in SCHEMA[t]]
+            hint = f" (did you mean [{where[0]}] {key}?)" if where else _hint(key, list(SCHEMA[""]))
+            problems.append(f"{key}: unknown top-level key{hint}; allowed at top level: "
+                            + ", ".join(SCHEMA[""]))
+    return flat
+
+
+def _hint(word: str, options: list[str], table: str = "") -> str:
+    close = difflib.get_close_matches(word, options, n=1, cutoff=0.6)
+    if close:
+        return f" (did you mean {table + '.' if table else ''}{close[0]}?)"
+    # the key may belong to another table
+    for t, keys in SCHEMA.items():
+        if t and t != table and word in keys:
+            return f" (it belongs in [{t}])"
+    return ""
+
+
+def _spec(full: str) -> Key:
+    table, _, key = full.rpartition(".")
+    return SCHEMA[table][key]
+
+
+def _typed_values(flat: dict, kind: str, problems: list[str]) -> dict[str, Any]:
+    values: dict[str, Any] = {}
+    for full, value in flat.items():
+        spec = _spec(full)
+        if kind not in spec.kinds:
+            other = "plate" if kind == "cone" else "cone"
+            problems.append(f"{full} = {value!r}: belongs to {other} cases only; this case is kind = {kind!r}")
+            continue
+        checked = _check_value(full, value, spec, problems)
+        if checked is not None:
+            values[full] = checked
+    for table, keys in SCHEMA.items():
+        for key, spec in keys.items():
+            full = f"{table}.{key}" if table else key
+            if spec.required and kind in spec.kinds and full not in flat:
+                problems.append(f"{full}: missing; required ({describe_range(spec)})")
+    return values
+
+
+def _check_value(full: str, value: Any, spec: Key, problems: list[str]):
+    allowed = describe_range(spec)
+    if spec.kind is str:
+        if not isinstance(value, str):
+            problems.append(f"{full} = {value!r}: must be text; allowed: {allowed}")
+            return None
+    elif isinstance(value, bool) or not isinstance(value, (int, float)):
+        problems.append(f"{full} = {value!r}: must be a number; allowed: {allowed}")
+        return None
+    elif spec.kind is int:
+        if not (math.isfinite(value) and float(value) == int(value)):
+            problems.append(f"{full} = {value!r}: must be a whole number; allowed: {allowed}")
+            return None
+        value = int(value)
+    else:
+        value = float(value)
+        if not math.isfinite(value):
+            problems.append(f"{full} = {value!r}: must be a finite number; allowed: {allowed}")
+            return None
+    if spec.choices and value not in spec.choices:
+        problems.append(f"{full} = {value!r}: not allowed{_hint(str(value), [str(c) for c in spec.choices])}; "
+                        f"allowed: {allowed}")
+        return None
+    if not _in_range(value, spec):
+        problems.append(f"{full} = {value!r}: out of range; allowed: {allowed}")
+        return None
+    return value
+
+
+def _in_range(value, spec: Key) -> bool:
+    if spec.kind is str:
+        return True
+    if spec.low is not None and (value < spec.low or (value == spec.low and not spec.low_inclusive)):
+        return False
+    if spec.high is not None and (value > spec.high or (value == spec.high and not spec.high_inclusive)):
+        return False
+    return True
+
+
+def _fill_defaults(values: dict, kind: str, problems: list[str]) -> None:
+    values["kind"] = kind
+    for table, keys in SCHEMA.items():
+        for key, spec in keys.items():
+            full = f"{table}.{key}" if table else key
+            if full in values or kind not in spec.kinds:
+                continue
+            try:
+                default = spec.default(values) if callable(spec.default) else spec.default
+            except (KeyError, ZeroDivisionError, ValueError):
+                default = None      # depends on a key that is itself invalid: reported elsewhere
+            if default is not None:
+                values[full] = default
+    alpha = values.get("interface.semi_cone_angle")
+    if kind == "cone" and alpha is None:
+        problems.append("interface.semi_cone_angle: missing; required for a cone (0 < value < 90 deg)")
+
+
+def _cross_checks(v: dict, kind: str, problems: list[str]) -> list[str]:
+    """Checks that relate several keys.  Returns warnings; appends errors."""
+    warnings: list[str] = []
+    r1, r2 = v["interface.inner_radius"], v["interface.outer_radius"]
+    alpha, mu, n = v["interface.semi_cone_angle"], v["interface.friction_coefficient"], \
+        v["interface.friction_surfaces"]
+    t = v["lining.thickness"]
+    if r1 >= r2:
+        problems.append(f"interface.inner_radius = {r1:g}: must be less than interface.outer_radius "
+                        f"= {r2:g} mm; allowed: 0 < inner_radius < {r2:g} mm")
+        return warnings
+    if kind == "cone":
+        if not 0.0 < alpha < 90.0:
+            problems.append(f"interface.semi_cone_angle = {alpha:g}: allowed for a cone: 0 < value < 90 deg")
+            return warnings
+        if n != 1:
+            problems.append(f"interface.friction_surfaces = {n}: a cone clutch has one friction face; allowed: 1")
+        if math.tan(math.radians(alpha)) < mu:
+            warnings.append(f"interface.semi_cone_angle = {alpha:g} deg: tan(alpha) = "
+                            f"{math.tan(math.radians(alpha)):.3f} < friction_coefficient = {mu:g}: the cone "
+                            "self-locks (it needs a pull to disengage)")
+        body, body_key = ("cone.rim_thickness", v["cone.rim_thickness"]) if v["lining.bonded_to"] == "cone" \
+            else ("cup.wall_thickness", v["cup.wall_thickness"])
+        if v["lining.bonded_to"] not in ("cone", "cup"):
+            problems.append(f"lining.bonded_to = {v['lining.bonded_to']!r}: allowed for a cone clutch: "
+                            "'cone' or 'cup'")
+        elif t >= body_key:
+            problems.append(f"lining.thickness = {t:g}: the lining is thicker than its body ({body} = "
+                            f"{body_key:g} mm); allowed: 0 < thickness < {body_key:g} mm")
+        for part in ("cone", "cup"):
+            bore, hub = v[f"{part}.bore_radius"], v[f"{part}.hub_outer_radius"]
+            if bore >= hub:
+                problems.append(f"{part}.bore_radius = {bore:g}: must be less than {part}.hub_outer_radius = "
+                                f"{hub:g} mm; allowed: 0 < bore_radius < {hub:g} mm")
+        mismatch = v["misalignment.cone_angle_mismatch"]
+        if not 0.0 < alpha + mismatch < 90.0:
+            problems.append(f"misalignment.cone_angle_mismatch = {mismatch:g}: the cup angle alpha + mismatch "
+                            f"must stay within (0, 90) deg")
+    else:
+        if alpha != 90.0:
+            problems.append(f"interface.semi_cone_angle = {alpha:g}: a plate clutch's faces are normal to "
+                            "the axis; allowed: 90 (or leave it out)")
+        if n % 2:
+            problems.append(f"interface.friction_surfaces = {n}: a plate clutch has two faces per disc; "
+                            "allowed: an even number 2, 4, 6 …")
+        if v["lining.bonded_to"] not in ("disc", "plates"):
+            problems.append(f"lining.bonded_to = {v['lining.bonded_to']!r}: allowed for a plate clutch: "
+                            "'disc' or 'plates'")
+        plates = ["pressure_plate", "counter_plate"] + (["separator_plate"] if n > 2 else [])
+        for part in plates + ["disc"]:
+            lo_key, hi_key = (("disc.core_inner_radius", "disc.core_outer_radius") if part == "disc"
+                              else (f"{part}.inner_radius", f"{part}.outer_radius"))
+            lo, hi = v[lo_key], v[hi_key]
+            if lo > r1:
+                problems.append(f"{lo_key} = {lo:g}: the friction surface must lie on the part; "
+                                f"allowed: 0 < value ≤ interface.inner_radius = {r1:g} mm")
+            if hi < r2:
+                problems.append(f"{hi_key} = {hi:g}: the friction surface must lie on the part; "
+                                f"allowed: value ≥ interface.outer_radius = {r2:g} mm")
+        if v["lining.bonded_to"] == "disc":
+            carriers = {"disc.core_thickness": v["disc.core_thickness"]}
+        else:
+            carriers = {f"{p}.thickness": v[f"{p}.thickness"] for p in plates}
+        for key, thick in carriers.items():
+            if t >= thick:
+                problems.append(f"lining.thickness = {t:g}: the lining is thicker than its body ({key} = "
+                                f"{thick:g} mm); allowed: 0 < thickness < {thick:g} mm")
+        coning = v["misalignment.coning"]
+        if abs(coning) >= t:
+            problems.append(f"misalignment.coning = {coning:g}: must be smaller than the lining thickness; "
+                            f"allowed: -{t:g} < coning < {t:g} mm")
+    _check_load(v, kind, problems)
+    _check_support(v, problems)
+    _check_mesh(v, kind, problems)
+    return warnings
+
+
+def _check_load(v: dict, kind: str, problems: list[str]) -> None:
+    ring = v.get("load.ring_radius")
+    if v["load.application"] != "ring":
+        if ring is not None:
+            problems.append(f"load.ring_radius = {ring:g}: only used with load.application = 'ring'")
+        return
+    if kind == "plate":
+        lo, hi = v["pressure_plate.inner_radius"], v["pressure_plate.outer_radius"]
+        where = "the pressure plate's back face"
+    else:
+        lo = v["cone.bore_radius"]
+        alpha = math.radians(v["interface.semi_cone_angle"])
+        lining_on_cone = v["lining.bonded_to"] == "cone"
+        hi = v["interface.outer_radius"] - (v["lining.thickness"] if lining_on_cone else 0.0) / math.cos(alpha)
+        where = "the inner cone's back face"
+    if not lo < ring < hi:
+        problems.append(f"load.ring_radius = {ring:g}: must lie on {where}; allowed: {lo:g} < value < {hi:g} mm")
+
+
+def _check_support(v: dict, problems: list[str]) -> None:
+    names = ("support.axial_stiffness", "support.radial_stiffness")
+    if v["support.type"] == "springs":
+        for key in names:
+            if key not in v:
+                problems.append(f"{key}: missing; required with support.type = 'springs' (value > 0 N/mm)")
+    else:
+        for key in names:
+            if key in v:
+                problems.append(f"{key} = {v[key]:g}: only used with support.type = 'springs'")
+
+
+def _check_mesh(v: dict, kind: str, problems: list[str]) -> None:
+    t = v["lining.thickness"]
+    alpha = math.radians(v["interface.semi_cone_angle"])
+    slant = (v["interface.outer_radius"] - v["interface.inner_radius"]) / math.sin(alpha)
+    face, edge, body = v["mesh.interface_element_size"], v["mesh.edge_element_size"], v["mesh.element_size"]
+    if face > slant / 4.0:
+        problems.append(f"mesh.interface_element_size = {face:g}: cannot resolve the friction face "
+                        f"({slant:.3g} mm long); allowed: 0 < value ≤ {slant / 4.0:.4g} mm")
+    if face > 2.0 * t:
+        problems.append(f"mesh.interface_element_size = {face:g}: cannot resolve the lining "
+                        f"({t:g} mm thick); allowed: 0 < value ≤ {2.0 * t:.4g} mm")
+    if edge > t:
+        problems.append(f"mesh.edge_element_size = {edge:g}: cannot resolve the lining at its ends "
+                        f"({t:g} mm thick); allowed: 0 < value ≤ {t:g} mm")
+    if edge > face:
+        problems.append(f"mesh.edge_element_size = {edge:g}: must not exceed mesh.interface_element_size "
+                        f"= {face:g} mm")
+    if body < face:
+        problems.append(f"mesh.element_size = {body:g}: must not be smaller than "
+                        f"mesh.interface_element_size = {face:g} mm")

@@ -1,0 +1,255 @@
+"""Every key a case file may hold: type, unit, allowed range, default, meaning.
+
+This table is the single source for validation, defaults and the case-file
+reference in the README (``clutchfe keys`` prints it), so the three cannot drift.
+A default may depend on the required keys (``r1``, ``r2``, ``alpha`` …): those are
+given as functions of the partially filled case.
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import Any, Callable
+
+STEEL_E, STEEL_NU = 210000.0, 0.30      # MPa; common practice for carbon steel
+CAST_IRON_E, CAST_IRON_NU = 110000.0, 0.26   # grey cast iron, from memory (90–140 GPa by grade)
+LINING_E, LINING_NU = 400.0, 0.25       # moulded organic facing, from memory (a few hundred MPa)
+
+
+@dataclass(frozen=True)
+class Key:
+    unit: str
+    meaning: str
+    kind: type = float
+    default: Any = None                 # value, callable(case) -> value, or None = required/optional
+    required: bool = False
+    low: float | None = None            # open bounds unless *_inclusive
+    high: float | None = None
+    low_inclusive: bool = False
+    high_inclusive: bool = False
+    choices: tuple = ()
+    kinds: tuple = ("cone", "plate")    # case kinds the key belongs to
+
+
+def _w(c):
+    return c["interface.outer_radius"] - c["interface.inner_radius"]
+
+
+def _r1(c):
+    return c["interface.inner_radius"]
+
+
+def _r2(c):
+    return c["interface.outer_radius"]
+
+
+def _cone_height(c):
+    """Axial length of the friction face of a cone."""
+    return _w(c) / math.tan(math.radians(c["interface.semi_cone_angle"]))
+
+
+def _r(x, nd=2):
+    return round(float(x), nd)
+
+
+CONE = ("cone",)
+PLATE = ("plate",)
+
+SCHEMA: dict[str, dict[str, Key]] = {
+    "": {
+        "kind": Key("", "case kind: a cone clutch or a (single or multi) plate clutch", str,
+                    required=True, choices=("cone", "plate")),
+        "name": Key("", "case name, used for the results folder (default: the file name)", str),
+        "description": Key("", "free text shown in reports", str, default=""),
+    },
+    "interface": {
+        "inner_radius": Key("mm", "r1, inner radius of the friction surface", required=True, low=0.0),
+        "outer_radius": Key("mm", "r2, outer radius of the friction surface", required=True, low=0.0),
+        "semi_cone_angle": Key("deg", "alpha, angle between the friction face and the axis (a plate is 90)",
+                               default=lambda c: 90.0 if c["kind"] == "plate" else None,
+                               low=0.0, high=90.0, high_inclusive=True),
+        "friction_coefficient": Key("", "mu, dynamic friction coefficient of the lining on its mate",
+                                    required=True, low=0.0, high=1.0, high_inclusive=True),
+        "friction_surfaces": Key("", "number of sliding faces carrying torque (a plate pack: 2 per disc)",
+                                 int, required=True, low=1, low_inclusive=True, high=40, high_inclusive=True),
+    },
+    "load": {
+        "axial_force": Key("N", "W, engagement (clamp) force along the axis", required=True, low=0.0),
+        "application": Key("", "how W reaches the pressed part: spread uniformly over its back face, "
+                           "or on a ring (diaphragm or coil spring contact)", str, default="uniform",
+                           choices=("uniform", "ring")),
+        "ring_radius": Key("mm", "radius of the ring load (application = \"ring\"); must lie on the back face",
+                           default=lambda c: _r((_r1(c) + _r2(c)) / 2) if c["load.application"] == "ring" else None,
+                           low=0.0),
+    },
+    "lining": {
+        "thickness": Key("mm", "friction lining thickness",
+                         default=lambda c: _r(0.04 * _r2(c)) if c["kind"] == "cone" else _r(0.02 * _r2(c)),
+                         low=0.0),
+        "youngs_modulus": Key("MPa", "lining Young's modulus", default=LINING_E, low=0.0),
+        "poissons_ratio": Key("", "lining Poisson's ratio", default=LINING_NU, low=-1.0, high=0.5),
+        "bonded_to": Key("", "the body carrying the lining: cone clutch \"cone\" (inner cone) or \"cup\"; "
+                         "plate clutch \"disc\" (both disc faces) or \"plates\" (the faces of the plates)", str,
+                         default=lambda c: "cone" if c["kind"] == "cone" else "disc",
+                         choices=("cone", "cup", "disc", "plates")),
+        "allowable_pressure": Key("MPa", "allowable contact pressure of the lining (manufacturer's data); "
+                                  "optional, compared with the peak pressure", low=0.0),
+    },
+    "cone": {
+        "youngs_modulus": Key("MPa", "inner (male) cone material", default=STEEL_E, low=0.0, kinds=CONE),
+        "poissons_ratio": Key("", "inner cone material", default=STEEL_NU, low=-1.0, high=0.5, kinds=CONE),
+        "rim_thickness": Key("mm", "conical rim under the lining, measured normal to the face",
+                             default=lambda c: _r(0.1 * _r2(c)), low=0.0, kinds=CONE),
+        "web_thickness": Key("mm", "axial thickness of the web joining rim and hub (at the wide end)",
+                             default=lambda c: _r(0.12 * _r2(c)), low=0.0, kinds=CONE),
+        "bore_radius": Key("mm", "shaft bore radius of the inner cone hub",
+                           default=lambda c: _r(0.25 * _r1(c)), low=0.0, kinds=CONE),
+        "hub_outer_radius": Key("mm", "outer radius of the inner cone hub",
+                                default=lambda c: _r(0.45 * _r1(c)), low=0.0, kinds=CONE),
+        "hub_length": Key("mm", "axial length of the inner cone hub (from the web's outer face)",
+                          default=lambda c: _r(0.6 * _cone_height(c) + 0.12 * _r2(c)), low=0.0, kinds=CONE),
+    },
+    "cup": {
+        "youngs_modulus": Key("MPa", "outer cup material", default=CAST_IRON_E, low=0.0, kinds=CONE),
+        "poissons_ratio": Key("", "outer cup material", default=CAST_IRON_NU, low=-1.0, high=0.5, kinds=CONE),
+        "wall_thickness": Key("mm", "conical wall of the cup, measured normal to the face",
+                              default=lambda c: _r(0.12 * _r2(c)), low=0.0, kinds=CONE),
+        "face_overrun": Key("mm", "axial length the cup face runs on past the narrow end of the lining "
+                            "(clearance to the cup's back web)",
+                            default=lambda c: _r(0.05 * _r2(c)), low=0.0, kinds=CONE),
+        "web_thickness": Key("mm", "axial thickness of the back web at the narrow end",
+                             default=lambda c: _r(0.12 * _r2(c)), low=0.0, kinds=CONE),
+        "bore_radius": Key("mm", "shaft bore radius of the cup hub",
+                           default=lambda c: _r(0.25 * _r1(c)), low=0.0, kinds=CONE),
+        "hub_outer_radius": Key("mm", "outer radius of the cup hub",
+                                default=lambda c: _r(0.45 * _r1(c)), low=0.0, kinds=CONE),
+        "hub_length": Key("mm", "axial length of the cup hub (from the web's inner face)",
+                          default=lambda c: _r(0.4 * _r1(c)), low=0.0, kinds=CONE),
+    },
+    "pressure_plate": {
+        "youngs_modulus": Key("MPa", "pressure plate material", default=CAST_IRON_E, low=0.0, kinds=PLATE),
+        "poissons_ratio": Key("", "pressure plate material", default=CAST_IRON_NU, low=-1.0, high=0.5,
+                              kinds=PLATE),
+        "thickness": Key("mm", "axial thickness", default=lambda c: _r(0.12 * _r2(c)), low=0.0, kinds=PLATE),
+        "inner_radius": Key("mm", "inner radius", default=lambda c: _r(_r1(c) - 0.05 * _w(c)), low=0.0,
+                            kinds=PLATE),
+        "outer_radius": Key("mm", "outer radius", default=lambda c: _r(_r2(c) + 0.05 * _w(c)), low=0.0,
+                            kinds=PLATE),
+    },
+    "disc": {
+        "youngs_modulus": Key("MPa", "friction disc core material", default=STEEL_E, low=0.0, kinds=PLATE),
+        "poissons_ratio": Key("", "friction disc core material", default=STEEL_NU, low=-1.0, high=0.5,
+                              kinds=PLATE),
+        "core_thickness": Key("mm", "axial thickness of the steel core", default=lambda c: _r(0.025 * _r2(c)),
+                              low=0.0, kinds=PLATE),
+        "core_inner_radius": Key("mm", "inner radius of the core (towards the splined hub)",
+                                 default=lambda c: _r(0.5 * _r1(c)), low=0.0, kinds=PLATE),
+        "core_outer_radius": Key("mm", "outer radius of the core", default=lambda c: _r2(c), low=0.0,
+                                 kinds=PLATE),
+    },
+    "counter_plate": {
+        "youngs_modulus": Key("MPa", "counter plate (flywheel side, or the end plate of a pack)",
+                              default=CAST_IRON_E, low=0.0, kinds=PLATE),
+        "poissons_ratio": Key("", "counter plate material", default=CAST_IRON_NU, low=-1.0, high=0.5,
+                              kinds=PLATE),
+        "thickness": Key("mm", "axial thickness", default=lambda c: _r(0.15 * _r2(c)), low=0.0, kinds=PLATE),
+        "inner_radius": Key("mm", "inner radius (bore)", default=lambda c: _r(0.3 * _r1(c)), low=0.0,
+                            kinds=PLATE),
+        "outer_radius": Key("mm", "outer radius", default=lambda c: _r(_r2(c) + 0.1 * _w(c)), low=0.0,
+                            kinds=PLATE),
+    },
+    "separator_plate": {
+        "youngs_modulus": Key("MPa", "separator plates between the discs of a pack", default=STEEL_E,
+                              low=0.0, kinds=PLATE),
+        "poissons_ratio": Key("", "separator plate material", default=STEEL_NU, low=-1.0, high=0.5,
+                              kinds=PLATE),
+        "thickness": Key("mm", "axial thickness", default=lambda c: _r(0.025 * _r2(c)), low=0.0, kinds=PLATE),
+        "inner_radius": Key("mm", "inner radius", default=lambda c: _r(_r1(c) - 0.05 * _w(c)), low=0.0,
+                            kinds=PLATE),
+        "outer_radius": Key("mm", "outer radius (towards the splined drum)",
+                            default=lambda c: _r(_r2(c) + 0.1 * _w(c)), low=0.0, kinds=PLATE),
+    },
+    "support": {
+        "type": Key("", "housing support of the fixed part (cup hub, or counter plate): \"rigid\", or "
+                    "\"springs\" with the stiffnesses below", str, default="rigid", choices=("rigid", "springs")),
+        "axial_stiffness": Key("N/mm", "total axial stiffness of the housing behind the fixed part "
+                               "(type = \"springs\")", low=0.0),
+        "radial_stiffness": Key("N/mm", "total radial stiffness of the seat in the bore (type = \"springs\")",
+                                low=0.0),
+    },
+    "misalignment": {
+        "cone_angle_mismatch": Key("deg", "cup semi-cone angle minus cone semi-cone angle; > 0 touches first "
+                                   "at r1, < 0 at r2", default=0.0, low=-2.0, high=2.0, low_inclusive=True,
+                                   high_inclusive=True, kinds=CONE),
+        "coning": Key("mm", "initial axial out-of-flatness of the pressure plate face at r2 relative to r1; "
+                      "> 0 touches first at r1", default=0.0, low=-1.0, high=1.0, low_inclusive=True,
+                      high_inclusive=True, kinds=PLATE),
+        "axis_tilt": Key("deg", "tilt between the axes of the two halves (needs the non-axisymmetric solve)",
+                         default=0.0, low=0.0, high=2.0, low_inclusive=True, high_inclusive=True),
+        "radial_offset": Key("mm", "offset between the axes of the two halves (needs the non-axisymmetric solve)",
+                             default=0.0, low=0.0, high=5.0, low_inclusive=True, high_inclusive=True),
+    },
+    "requirement": {
+        "required_torque": Key("N·m", "torque the clutch must transmit (optional)", low=0.0),
+        "service_factor": Key("", "factor on the required torque for shocks and duty (common practice 1.2–3)",
+                              default=1.0, low=1.0, high=10.0, low_inclusive=True, high_inclusive=True),
+    },
+    "mesh": {
+        "interface_element_size": Key("mm", "element size along the friction face, mid-face",
+                                      default=lambda c: _r(min(c["lining.thickness"],
+                                                               _slant(c) / 30.0), 3), low=0.0),
+        "edge_element_size": Key("mm", "element size at the ends of the lining, where the pressure changes "
+                                 "fastest", default=lambda c: _r(min(c["lining.thickness"] / 4.0,
+                                                                     c["mesh.interface_element_size"] / 2.0), 4),
+                                 low=0.0),
+        "element_size": Key("mm", "largest element size in the bodies",
+                            default=lambda c: _r(4.0 * c["mesh.interface_element_size"], 3), low=0.0),
+        "lining_layers": Key("", "elements through the lining thickness", int, default=2,
+                             low=1, high=20, low_inclusive=True, high_inclusive=True),
+        "element_order": Key("", "1 = linear, 2 = quadratic triangles", int, default=2, choices=(1, 2)),
+    },
+}
+
+
+def _slant(c):
+    return _w(c) / math.sin(math.radians(c["interface.semi_cone_angle"]))
+
+
+def table_applies(table: str, kind: str) -> bool:
+    keys = SCHEMA[table].values()
+    return any(kind in k.kinds for k in keys)
+
+
+def describe_range(key: Key) -> str:
+    if key.choices:
+        return "one of " + ", ".join(repr(c) if isinstance(c, str) else str(c) for c in key.choices)
+    unit = f" {key.unit}" if key.unit else ""
+    if key.low is not None and key.high is None:
+        return f"value {'≥' if key.low_inclusive else '>'} {key.low:g}{unit}"
+    lo = "" if key.low is None else (f"{key.low:g} ≤ " if key.low_inclusive else f"{key.low:g} < ")
+    hi = "" if key.high is None else (f" ≤ {key.high:g}" if key.high_inclusive else f" < {key.high:g}")
+    if not lo and not hi:
+        return "any text" if key.kind is str else "any number"
+    return f"{lo}value{hi}{unit}"
+
+
+def reference_markdown() -> str:
+    """The case-file reference as a Markdown table (used by the README and `clutchfe keys`)."""
+    lines = ["| key | unit | allowed | default | meaning |", "|---|---|---|---|---|"]
+    for table, keys in SCHEMA.items():
+        for name, key in keys.items():
+            full = f"{table}.{name}" if table else name
+            if key.required:
+                default = "required"
+            elif callable(key.default):
+                default = "derived"
+            elif key.default is None:
+                default = "optional"
+            else:
+                default = repr(key.default) if isinstance(key.default, str) else f"{key.default:g}"
+            scope = "" if key.kinds == ("cone", "plate") else f" ({key.kinds[0]} only)"
+            lines.append(f"| `{full}` | {key.unit} | {describe_range(key)} | {default} | {key.meaning}{scope} |")
+    return "\n".join(lines)
+
+
+Default = Callable[[dict], Any]

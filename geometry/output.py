@@ -1,0 +1,69 @@
+"""Write a section mesh as VTU and draw it with its named faces."""
+from __future__ import annotations
+
+import meshio
+import numpy as np
+
+from .mesher import SectionMesh
+from .section import Section
+
+
+def write_mesh(mesh: SectionMesh, path) -> None:
+    """VTU with the triangles (cell data ``region_id``) and the named faces as line cells
+    (cell data ``face_id``); the id -> name tables go into field data."""
+    tri_type, line_type = ("triangle6", "line3") if mesh.order == 2 else ("triangle", "line")
+    names = sorted(mesh.faces)
+    cells = [(tri_type, mesh.triangles)] + [(line_type, mesh.faces[n]) for n in names]
+    region_id = [mesh.triangle_region.astype(np.int32)] + [np.full(len(mesh.faces[n]), -1, np.int32)
+                                                            for n in names]
+    face_id = [np.full(len(mesh.triangles), -1, np.int32)] + [np.full(len(mesh.faces[n]), k, np.int32)
+                                                              for k, n in enumerate(names)]
+    points = np.column_stack([mesh.points, np.zeros(len(mesh.points))])
+    out = meshio.Mesh(points, cells, cell_data={"region_id": region_id, "face_id": face_id})
+    meshio.write(str(path), out, file_format="vtu")
+    # region / face names ride along in a small sidecar table, since VTU field data holds numbers only
+    legend = "\n".join([f"region {k} {n}" for k, n in enumerate(mesh.region_names)] +
+                       [f"face {k} {n}" for k, n in enumerate(names)])
+    with open(str(path) + ".names.txt", "w", encoding="utf-8") as fh:
+        fh.write(legend + "\n")
+
+
+def section_picture(section: Section, mesh: SectionMesh, path, title: str = "") -> None:
+    """PNG of the meshed section: regions shaded, named faces drawn thick and listed."""
+    import matplotlib
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+    from matplotlib.tri import Triangulation
+
+    tri = Triangulation(mesh.points[:, 0], mesh.points[:, 1], mesh.triangles[:, :3])
+    r_span = np.ptp(mesh.points[:, 0])
+    z_span = np.ptp(mesh.points[:, 1])
+    height = 7.0
+    width = float(np.clip(height * r_span / max(z_span, 1e-9) + 3.5, 6.0, 16.0))
+    fig, ax = plt.subplots(figsize=(width, height))
+    shades = plt.get_cmap("Pastel1")
+    ax.tripcolor(tri, facecolors=mesh.triangle_region % 9, cmap=shades, vmin=0, vmax=8, edgecolors="none")
+    ax.triplot(tri, color="0.55", lw=0.25)
+    strong = plt.get_cmap("tab10")
+    for k, name in enumerate(sorted(mesh.faces)):
+        segs = mesh.faces[name][:, [0, -1]] if mesh.order == 1 else mesh.faces[name][:, :2]
+        colour = strong(k % 10)
+        for a, b in segs:
+            ax.plot(mesh.points[[a, b], 0], mesh.points[[a, b], 1], color=colour, lw=3.0, solid_capstyle="butt")
+        ax.plot([], [], color=colour, lw=3.0, label=name)
+    for k, name in enumerate(mesh.region_names):
+        cells = mesh.triangles[mesh.triangle_region == k, :3]
+        centre = mesh.points[cells].mean(axis=(0, 1))
+        ax.annotate(name.replace("_", " "), centre, ha="center", va="center", fontsize=8,
+                    bbox=dict(boxstyle="round,pad=0.2", fc="white", ec="0.6", alpha=0.8))
+    ax.axvline(0.0, color="k", lw=0.8, ls="-.")
+    ax.set_xlim(left=-0.02 * r_span)
+    ax.set_aspect("equal")
+    ax.set_xlabel("radius r [mm]")
+    ax.set_ylabel("axial position z [mm]")
+    ax.set_title(title or f"{section.kind} section: {len(mesh.triangles)} triangles, "
+                 f"{len(mesh.points)} nodes")
+    ax.legend(loc="center left", bbox_to_anchor=(1.01, 0.5), fontsize=8, title="named faces")
+    fig.tight_layout()
+    fig.savefig(path, dpi=130)
+    plt.close(fig)
