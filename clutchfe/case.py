@@ -96,11 +96,12 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
         problems.append(f"kind = {kind!r}: allowed: 'cone' or 'plate'" if kind is not None
                         else "kind: missing; allowed: 'cone' or 'plate'")
         raise CaseError(problems)
+    unknown = len(problems)
     values = _typed_values(flat, kind, problems)
-    if problems:
+    if len(problems) > unknown:             # relations between keys need every value valid
         raise CaseError(problems)
-    _fill_defaults(values, kind, problems)
-    if problems:
+    _fill_defaults(values, kind, problems)   # unknown keys are left out, the rest is still checked
+    if len(problems) > unknown:
         raise CaseError(problems)
     warnings = _cross_checks(values, kind, problems)
     if problems:
@@ -137,13 +138,12 @@ def _flatten(data: dict, problems: list[str]) -> dict[str, Any]:
 
 
 def _hint(word: str, options: list[str], table: str = "") -> str:
+    homes = [t for t, keys in SCHEMA.items() if t and t != table and word in keys]
+    if table and homes:
+        return f" (did you mean {' or '.join(f'{t}.{word}' for t in homes)}?)"
     close = difflib.get_close_matches(word, options, n=1, cutoff=0.6)
     if close:
         return f" (did you mean {table + '.' if table else ''}{close[0]}?)"
-    # the key may belong to another table
-    for t, keys in SCHEMA.items():
-        if t and t != table and word in keys:
-            return f" (it belongs in [{t}])"
     return ""
 
 

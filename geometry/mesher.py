@@ -40,6 +40,10 @@ class SectionMesh:
         return int(np.unique(self.triangles[:, :3]).size)
 
 
+def _cross2(u, v):
+    return u[..., 0] * v[..., 1] - u[..., 1] * v[..., 0]
+
+
 def face_node_count(length: float, face_size: float, edge_size: float) -> tuple[int, float]:
     """Nodes along a friction face and gmsh's 'Bump' coefficient (≈ end size / mid size).
 
@@ -184,7 +188,7 @@ def _to_section_mesh(raw: meshio.Mesh, section: Section, order: int) -> SectionM
     faces = {name: renumber[blocks[line_type][s[line_type]]] for name, s in sets.items() if line_type in s}
     # orient triangles counter-clockwise in (r, z)
     p = points[triangles[:, :3]]
-    signed = np.cross(p[:, 1] - p[:, 0], p[:, 2] - p[:, 0])
+    signed = _cross2(p[:, 1] - p[:, 0], p[:, 2] - p[:, 0])
     flip = signed < 0
     if flip.any():
         swap = [0, 2, 1, 5, 4, 3] if order == 2 else [0, 2, 1]

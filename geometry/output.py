@@ -52,8 +52,10 @@ def section_picture(section: Section, mesh: SectionMesh, path, title: str = "") 
             ax.plot(mesh.points[[a, b], 0], mesh.points[[a, b], 1], color=colour, lw=3.0, solid_capstyle="butt")
         ax.plot([], [], color=colour, lw=3.0, label=name)
     for k, name in enumerate(mesh.region_names):
-        cells = mesh.triangles[mesh.triangle_region == k, :3]
-        centre = mesh.points[cells].mean(axis=(0, 1))
+        centres = mesh.points[mesh.triangles[mesh.triangle_region == k, :3]].mean(axis=1)
+        # label at the region's own triangle nearest its centroid (an L-shaped body's
+        # centroid may lie outside it)
+        centre = centres[np.argmin(np.linalg.norm(centres - centres.mean(axis=0), axis=1))]
         ax.annotate(name.replace("_", " "), centre, ha="center", va="center", fontsize=8,
                     bbox=dict(boxstyle="round,pad=0.2", fc="white", ec="0.6", alpha=0.8))
     ax.axvline(0.0, color="k", lw=0.8, ls="-.")

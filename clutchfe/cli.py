@@ -1,0 +1,90 @@
+"""The ``clutchfe`` command.
+
+Exit status: 0 ok; 2 invalid input (one line per problem: key, value, allowed
+range); 3 the physics cannot be solved as asked (reason given); 1 a bug.
+"""
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+from pathlib import Path
+
+from rich.console import Console
+
+from .case import CaseError, load_case
+
+EXIT_OK, EXIT_BUG, EXIT_INPUT, EXIT_PHYSICS = 0, 1, 2, 3
+
+err = Console(stderr=True, highlight=False, soft_wrap=True)
+out = Console(highlight=False)
+
+
+def _parser() -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(prog="clutchfe", description="Finite-element contact check of a friction "
+                                "clutch's torque capacity against the uniform-pressure and uniform-wear "
+                                "hand formulas.")
+    sub = p.add_subparsers(dest="command", required=True, metavar="COMMAND")
+    c = sub.add_parser("check", help="validate a case file")
+    c.add_argument("case", type=Path)
+    m = sub.add_parser("mesh", help="mesh a case and draw its section with the named faces")
+    m.add_argument("case", type=Path)
+    m.add_argument("--out", type=Path, help="output folder (default results/<case name>)")
+    r = sub.add_parser("run", help="solve a case and compare its capacity with the hand formulas")
+    r.add_argument("case", type=Path)
+    r.add_argument("--out", type=Path, help="output folder (default results/<case name>)")
+    sub.add_parser("keys", help="print the case-file reference")
+    return p
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = _parser()
+    try:
+        args = parser.parse_args(argv)
+    except SystemExit as exc:        # argparse prints its own usage line; usage errors are input errors
+        return EXIT_INPUT if exc.code else EXIT_OK
+    try:
+        return _dispatch(args)
+    except CaseError as exc:
+        for problem in exc.problems:
+            err.print(f"clutchfe: error: {problem}", markup=False)
+        return EXIT_INPUT
+    except KeyboardInterrupt:
+        err.print("clutchfe: interrupted; nothing was written", markup=False)
+        return 130
+    except Exception as exc:  # noqa: BLE001 - the last line of defence: no traceback for users
+        from .pipeline import PhysicsError
+        if isinstance(exc, PhysicsError):
+            err.print(f"clutchfe: cannot solve: {exc}", markup=False)
+            return EXIT_PHYSICS
+        if os.environ.get("CLUTCHFE_DEBUG"):
+            raise
+        err.print(f"clutchfe: internal error (a bug, please report it with the case file): "
+                  f"{type(exc).__name__}: {exc}", markup=False)
+        return EXIT_BUG
+
+
+def _dispatch(args) -> int:
+    if args.command == "keys":
+        from .schema import reference_markdown
+        out.print(reference_markdown(), markup=False)
+        return EXIT_OK
+    from . import pipeline
+
+    case = load_case(args.case)
+    for warning in case.warnings:
+        err.print(f"clutchfe: warning: {warning}", markup=False)
+    section = pipeline.section_of(case)
+    if args.command == "check":
+        pipeline.print_check(case, section, out)
+        return EXIT_OK
+    folder = args.out or Path("results") / case.name
+    if args.command == "mesh":
+        pipeline.mesh_case(case, section, folder, out)
+        return EXIT_OK
+    pipeline.run_case(case, section, folder, out)
+    return EXIT_OK
+
+
+if __name__ == "__main__":      # pragma: no cover
+    sys.exit(main())
