@@ -60,5 +60,112 @@ def mesh_case(case: Case, section, folder: Path, console) -> None:
                   f"{len(mesh.faces)} named faces -> {folder}/mesh.vtu, {folder}/section.png")
 
 
-def run_case(case: Case, section, folder: Path, console) -> None:
-    raise PhysicsError("the contact solve is not available yet")
+def fe_model_of(case: Case, section, mesh):
+    """The FE stage's plain input: bodies, materials, supports, load and friction interfaces."""
+    import numpy as np
+
+    from .fem import ContactPair, FaceLoad, FeModel, RingLoad, SpringSupport
+
+    regions = {reg.name: reg for reg in section.regions}
+    body_index = {b.name: k for k, b in enumerate(section.bodies)}
+    by_region = np.array([body_index[regions[n].body] for n in mesh.region_names])
+    modulus = np.array([regions[n].youngs_modulus for n in mesh.region_names])
+    poisson = np.array([regions[n].poissons_ratio for n in mesh.region_names])
+    sup = case.support
+    springs = sup.type == "springs"
+    supports = [SpringSupport(section.support_axial_face, axial_stiffness=sup.axial_stiffness if springs else None,
+                              radial_stiffness=0.0),
+                SpringSupport(section.support_radial_face, axial_stiffness=0.0,
+                              radial_stiffness=sup.radial_stiffness if springs else None)]
+    force = -section.axial_force            # the pressed body moves along -z
+    load = (RingLoad(section.load_face, section.ring_radius, force) if section.ring_radius is not None
+            else FaceLoad(section.load_face, force))
+    contacts = []
+    for itf in section.interfaces:
+        pairs = mesh.interface_pairs[itf.name]
+        along = np.linalg.norm(mesh.points[pairs[:, 0]] - np.asarray(itf.start), axis=1) / itf.slant_length
+        gap = itf.gap_start + (itf.gap_end - itf.gap_start) * along
+        contacts.append(ContactPair(itf.name, itf.face_a, itf.face_b, itf.normal_a, pairs.T.copy(), gap))
+    return FeModel(
+        points=mesh.points.T.copy(), triangles=mesh.triangles[:, :3].T.copy(),
+        element_body=by_region[mesh.triangle_region], element_youngs_modulus=modulus[mesh.triangle_region],
+        element_poissons_ratio=poisson[mesh.triangle_region], body_names=[b.name for b in section.bodies],
+        body_axially_free=[b.role != "supported" for b in section.bodies],
+        faces={k: v[:, :2].T.copy() for k, v in mesh.faces.items()}, supports=supports, loads=[load],
+        contacts=contacts, element_order=case.mesh.element_order)
+
+
+def solve_case(case: Case, section=None, mesh=None):
+    """Mesh (unless given), solve and compare: returns (mesh, FeResult, comparison dict)."""
+    from .comparison import compare, hand_capacity
+    from .fem import ContactError, solve
+    from .geometry import mesh_section
+
+    section = section if section is not None else section_of(case)
+    mesh = mesh if mesh is not None else mesh_section(section, order=1)
+    if case.misalignment.axis_tilt or case.misalignment.radial_offset:
+        key = "axis_tilt" if case.misalignment.axis_tilt else "radial_offset"
+        raise CaseError([f"misalignment.{key} = {getattr(case.misalignment, key):g}: the non-axisymmetric "
+                         "solve is not in this version; allowed here: 0"])
+    try:
+        fe = solve(fe_model_of(case, section, mesh))
+    except ContactError as exc:
+        raise PhysicsError(str(exc)) from None
+    itf = case.interface
+    hand = hand_capacity(itf.inner_radius, itf.outer_radius, itf.semi_cone_angle, itf.friction_coefficient,
+                         itf.friction_surfaces, case.load.axial_force)
+    result = compare(fe.interfaces, hand, case.requirement.required_torque, case.requirement.service_factor)
+    return mesh, fe, result
+
+
+def run_case(case: Case, section, folder: Path, console) -> dict:
+    from rich.progress import Progress
+
+    from . import outputs
+    from .geometry import mesh_section
+
+    with Progress(transient=True, console=console) as progress:
+        task = progress.add_task("meshing the section", total=4)
+        mesh = mesh_section(section, order=1)
+        progress.update(task, advance=1, description=f"solving the contact ({len(mesh.points)} nodes)")
+        mesh, fe, result = solve_case(case, section, mesh)
+        progress.update(task, advance=1, description="writing results")
+        summary = summary_of(case, mesh, fe, result)
+        with atomic_folder(folder) as tmp:
+            outputs.write_all(tmp, case, section, mesh, fe, result, summary)
+            progress.update(task, advance=1, description="pictures")
+        progress.update(task, advance=1)
+    outputs.print_table(console, case, summary, folder)
+    return summary
+
+
+def summary_of(case: Case, mesh, fe, result: dict) -> dict:
+    from . import __version__
+
+    itf = case.interface
+    summary = {
+        "case_name": case.name, "kind": case.kind, "input_sha256": case.input_sha256, "version": __version__,
+        "friction_coefficient": itf.friction_coefficient, "friction_surfaces": itf.friction_surfaces,
+        "semi_cone_angle_deg": itf.semi_cone_angle, "inner_radius_mm": itf.inner_radius,
+        "outer_radius_mm": itf.outer_radius, "axial_force_N": case.load.axial_force,
+    }
+    for key in ("torque_fe_Nm", "torque_uniform_pressure_Nm", "torque_uniform_wear_Nm", "capacity_position",
+                "effective_radius_mm", "radius_uniform_pressure_mm", "radius_uniform_wear_mm",
+                "peak_pressure_MPa", "mean_pressure_MPa", "contact_area_fraction", "engagement_force_N"):
+        summary[key] = result[key]
+    summary["axial_force_balance_error"] = max(abs(result["axial_force_balance_error"]),
+                                               fe.axial_force_balance_error)
+    summary["dofs"] = fe.dofs
+    summary["solve_seconds"] = round(fe.timings.get("total", 0.0), 4)
+    allowable = case.lining.allowable_pressure
+    summary.update({k: v for k, v in result.items() if k not in summary and k != "surfaces"})
+    summary["surfaces"] = result["surfaces"]
+    summary["peak_pressure_over_allowable"] = (result["peak_pressure_MPa"] / allowable if allowable else None)
+    summary["rigid_approach_mm"] = fe.rigid_approach
+    summary["contact_iterations"] = fe.contact_iterations
+    summary["mesh"] = {"nodes": int(len(mesh.points)), "triangles": int(len(mesh.triangles)),
+                       "element_order": case.mesh.element_order}
+    summary["warnings"] = list(case.warnings) + list(result.get("warnings", []))
+    summary["versions"] = versions()
+    summary["caution"] = CAUTION
+    return summary

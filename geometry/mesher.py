@@ -11,6 +11,8 @@
 """
 from __future__ import annotations
 
+import contextlib
+import io
 import math
 import tempfile
 from dataclasses import dataclass
@@ -71,7 +73,8 @@ def mesh_section(section: Section, order: int | None = None) -> SectionMesh:
         with tempfile.TemporaryDirectory() as tmp:
             path = Path(tmp) / "section.msh"
             gmsh.write(str(path))
-            raw = meshio.read(path)
+            with contextlib.redirect_stdout(io.StringIO()):     # meshio's gmsh reader prints a blank line
+                raw = meshio.read(path)
     finally:
         gmsh.finalize()
     return _to_section_mesh(raw, section, order)

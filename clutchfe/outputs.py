@@ -1,0 +1,130 @@
+"""The files of a results folder and the terminal table."""
+from __future__ import annotations
+
+import csv
+import os
+from pathlib import Path
+
+import numpy as np
+from rich.table import Table
+
+from .results import write_json
+
+STRESS_LABEL = "von Mises [MPa]"
+
+
+def write_all(folder: Path, case, section, mesh, fe, result: dict, summary: dict) -> None:
+    from .geometry import section_picture, write_mesh
+    from .plots import effective_radius_bar, pressure_plot
+
+    write_json(folder / "summary.json", summary)
+    write_pressure_csv(folder / "pressure.csv", fe)
+    write_solution_vtu(folder / "solution.vtu", mesh, fe)
+    write_mesh(mesh, folder / "mesh.vtu")
+    section_picture(section, mesh, folder / "section.png",
+                    title=f"{case.name}: {len(mesh.triangles)} triangles, {len(mesh.points)} nodes")
+    pressure_plot(folder / "pressure.png", fe.interfaces, result, result["capacity_position"],
+                  result["effective_radius_mm"], case.name)
+    effective_radius_bar(folder / "effective_radius.png", case.interface.inner_radius,
+                         case.interface.outer_radius, result["radius_uniform_pressure_mm"],
+                         result["radius_uniform_wear_mm"], result["effective_radius_mm"])
+    deformed_picture(folder / "deformed.png", mesh, fe, case.name)
+
+
+def write_pressure_csv(path: Path, fe) -> None:
+    with open(path, "w", newline="", encoding="utf-8") as fh:
+        out = csv.writer(fh)
+        out.writerow(["surface", "r_mm", "z_mm", "pressure_MPa", "normal_force_N", "tributary_area_mm2",
+                      "gap_mm", "in_contact"])
+        for itf in fe.interfaces:
+            for k in range(len(itf.r)):
+                out.writerow([itf.name, f"{itf.r[k]:.6f}", f"{itf.z[k]:.6f}", f"{itf.pressure[k]:.6g}",
+                              f"{itf.normal_force[k]:.6g}", f"{itf.tributary_area[k]:.6g}",
+                              f"{itf.gap[k]:.6g}", int(bool(itf.in_contact[k]))])
+
+
+def contact_pressure_at_vertices(mesh, fe) -> np.ndarray:
+    """Interface pressure put back on the mesh vertices (both sides of each face), 0 elsewhere."""
+    p = np.zeros(len(mesh.points))
+    for itf in fe.interfaces:
+        pairs = mesh.interface_pairs[itf.name]
+        for side in (0, 1):
+            xy = mesh.points[pairs[:, side]]
+            # interface nodes include P2 mid-nodes; keep the values that sit on vertices
+            for node, (r, z) in zip(pairs[:, side], xy):
+                k = np.argmin((itf.r - r) ** 2 + (itf.z - z) ** 2)
+                p[node] = itf.pressure[k]
+    return p
+
+
+def write_solution_vtu(path: Path, mesh, fe) -> None:
+    import meshio
+
+    points = np.column_stack([mesh.points, np.zeros(len(mesh.points))])
+    u = np.column_stack([fe.displacement.T, np.zeros(len(mesh.points))])
+    data = {"displacement_mm": u, "contact_pressure_MPa": contact_pressure_at_vertices(mesh, fe)}
+    names = {"rr": "stress_rr_MPa", "zz": "stress_zz_MPa", "tt": "stress_hoop_MPa", "rz": "stress_rz_MPa",
+             "von_mises": "von_mises_MPa"}
+    for key, label in names.items():
+        data[label] = np.asarray(fe.stress[key])
+    out = meshio.Mesh(points, [("triangle", mesh.triangles[:, :3])], point_data=data,
+                      cell_data={"region_id": [mesh.triangle_region.astype(np.int32)]})
+    meshio.write(str(path), out, file_format="vtu")
+
+
+def deformed_picture(path: Path, mesh, fe, title: str) -> None:
+    """Deformed section (displacements magnified) coloured by von Mises stress, off-screen."""
+    # off-screen through EGL: no X server here, and the X window class warns on stderr
+    os.environ.setdefault("VTK_DEFAULT_OPENGL_WINDOW", "vtkEGLRenderWindow")
+    import pyvista as pv
+
+    pv.OFF_SCREEN = True
+    points = np.column_stack([mesh.points, np.zeros(len(mesh.points))])
+    cells = np.hstack([np.full((len(mesh.triangles), 1), 3), mesh.triangles[:, :3]]).ravel()
+    grid = pv.UnstructuredGrid(cells, np.full(len(mesh.triangles), pv.CellType.TRIANGLE), points)
+    u = fe.displacement.T
+    size = float(np.ptp(mesh.points, axis=0).max())
+    umax = float(np.abs(u).max())
+    scale = 0.04 * size / umax if umax > 0 else 1.0
+    moved = grid.copy()
+    moved.points = points + np.column_stack([u * scale, np.zeros(len(u))])
+    moved.point_data[STRESS_LABEL] = np.asarray(fe.stress["von_mises"])
+    plotter = pv.Plotter(off_screen=True, window_size=(1200, 900))
+    plotter.set_background("white")
+    plotter.add_mesh(grid, style="wireframe", color="lightgray", line_width=0.5)
+    plotter.add_mesh(moved, scalars=STRESS_LABEL, cmap="viridis", show_edges=False,
+                     scalar_bar_args={"title": STRESS_LABEL, "color": "black", "vertical": False,
+                                      "position_x": 0.25, "position_y": 0.04, "width": 0.5, "height": 0.07})
+    plotter.add_text(f"{title}: deformed section, displacements x {scale:.0f} (grey: unloaded)",
+                     font_size=10, color="black")
+    plotter.view_xy()
+    plotter.camera.zoom(1.1)
+    plotter.screenshot(str(path))
+    plotter.close()
+
+
+def print_table(console, case, summary: dict, folder: Path) -> None:
+    table = Table(title=f"{case.name}: torque capacity (FE contact vs hand formulas)")
+    table.add_column("quantity", no_wrap=True)
+    table.add_column("FE", justify="right")
+    table.add_column("uniform pressure", justify="right")
+    table.add_column("uniform wear", justify="right")
+    table.add_row("torque [N·m]", f"{summary['torque_fe_Nm']:.2f}", f"{summary['torque_uniform_pressure_Nm']:.2f}",
+                  f"{summary['torque_uniform_wear_Nm']:.2f}")
+    table.add_row("effective radius [mm]", f"{summary['effective_radius_mm']:.3f}",
+                  f"{summary['radius_uniform_pressure_mm']:.3f}", f"{summary['radius_uniform_wear_mm']:.3f}")
+    table.add_row("peak pressure [MPa]", f"{summary['peak_pressure_MPa']:.4f}",
+                  f"{summary['mean_pressure_MPa']:.4f}", f"{summary['peak_pressure_uniform_wear_MPa']:.4f}")
+    if summary.get("required_torque_Nm"):
+        table.add_row("capacity margin [%]", f"{100 * summary['capacity_margin_fe']:+.1f}",
+                      f"{100 * summary['capacity_margin_uniform_pressure']:+.1f}",
+                      f"{100 * summary['capacity_margin_uniform_wear']:+.1f}")
+    console.print(table)
+    console.print(f"capacity position xi = {summary['capacity_position']:.3f} (1 = uniform pressure, "
+                  f"0 = uniform wear); contact over {100 * summary['contact_area_fraction']:.1f} % of the face; "
+                  f"axial balance error {summary['axial_force_balance_error']:.1e}")
+    console.print(summary["verdict"], markup=False)
+    for warning in summary.get("warnings", []):
+        console.print(f"warning: {warning}", markup=False, style="bold red")
+    console.print(f"results: {folder}/ (summary.json, pressure.csv, solution.vtu, pressure.png, deformed.png)")
+    console.print(f"caution: {summary['caution']}", markup=False, style="italic")
