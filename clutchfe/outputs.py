@@ -6,6 +6,7 @@ import os
 from pathlib import Path
 
 import numpy as np
+from rich.markup import escape
 from rich.table import Table
 
 from .results import write_json
@@ -109,14 +110,14 @@ def print_table(console, case, summary: dict, folder: Path) -> None:
     table.add_column("FE", justify="right")
     table.add_column("uniform pressure", justify="right")
     table.add_column("uniform wear", justify="right")
-    table.add_row("torque [N·m]", f"{summary['torque_fe_Nm']:.2f}", f"{summary['torque_uniform_pressure_Nm']:.2f}",
+    table.add_row(escape("torque [N·m]"), f"{summary['torque_fe_Nm']:.2f}", f"{summary['torque_uniform_pressure_Nm']:.2f}",
                   f"{summary['torque_uniform_wear_Nm']:.2f}")
-    table.add_row("effective radius [mm]", f"{summary['effective_radius_mm']:.3f}",
+    table.add_row(escape("effective radius [mm]"), f"{summary['effective_radius_mm']:.3f}",
                   f"{summary['radius_uniform_pressure_mm']:.3f}", f"{summary['radius_uniform_wear_mm']:.3f}")
-    table.add_row("peak pressure [MPa]", f"{summary['peak_pressure_MPa']:.4f}",
+    table.add_row(escape("peak pressure [MPa]"), f"{summary['peak_pressure_MPa']:.4f}",
                   f"{summary['mean_pressure_MPa']:.4f}", f"{summary['peak_pressure_uniform_wear_MPa']:.4f}")
     if summary.get("required_torque_Nm"):
-        table.add_row("capacity margin [%]", f"{100 * summary['capacity_margin_fe']:+.1f}",
+        table.add_row(escape("capacity margin [%]"), f"{100 * summary['capacity_margin_fe']:+.1f}",
                       f"{100 * summary['capacity_margin_uniform_pressure']:+.1f}",
                       f"{100 * summary['capacity_margin_uniform_wear']:+.1f}")
     console.print(table)
