@@ -7,6 +7,7 @@ Units: mm, N, MPa.  Coordinates are (r, z): r radius from the axis, z along it.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import Callable
 
 import numpy as np
 
@@ -43,6 +44,18 @@ class RingLoad:
 
 
 @dataclass
+class FacePressure:
+    """Uniform normal pressure (MPa, > 0 pushes into the body) on a named face.
+
+    Extension of the contract for radial loads such as a shrink fit or a test
+    cylinder's bore pressure; may appear in ``FeModel.loads``.
+    """
+
+    face: str
+    pressure: float
+
+
+@dataclass
 class ContactPair:
     """One friction interface: two faces whose nodes coincide at zero load.
 
@@ -60,6 +73,9 @@ class ContactPair:
     normal_a: tuple[float, float]
     vertex_pairs: np.ndarray
     initial_gap: np.ndarray
+    # Optional gap(r, z) -> mm evaluated at every FE node of face A instead of
+    # interpolating ``initial_gap``; for gaps curved between vertices (crowning).
+    initial_gap_function: Callable[[np.ndarray, np.ndarray], np.ndarray] | None = None
 
 
 @dataclass
@@ -73,7 +89,7 @@ class FeModel:
     body_axially_free: list[bool]   # rigid axial motion fixed by force balance, not a support
     faces: dict[str, np.ndarray]    # name -> (2, k) vertex index pairs of boundary facets
     supports: list[SpringSupport] = field(default_factory=list)
-    loads: list[FaceLoad | RingLoad] = field(default_factory=list)
+    loads: list[FaceLoad | RingLoad | FacePressure] = field(default_factory=list)
     contacts: list[ContactPair] = field(default_factory=list)
     element_order: int = 2          # 1 = P1, 2 = P2 triangles on the linear mesh
 

@@ -1,0 +1,154 @@
+"""The condensed contact problem: frictionless, unilateral, with free bodies.
+
+Find nodal normal forces lam and rigid axial translations delta with
+
+    gap = g + C lam + B delta >= 0,   lam >= 0,   lam . gap = 0,   B^T lam = -e
+
+C (compliance, SPD) and B (axial part of the gap operator per free body) come
+from the condensation; e is the external axial force on each free body.  These
+are the optimality conditions of the convex QP  min 1/2 lam C lam + g lam  over
+lam >= 0, B^T lam = -e, with delta the multipliers of the balance equations
+(Nocedal & Wright, Numerical Optimization 2006, §16.1 KKT conditions).
+
+Solved by a primal-dual active set (Hintermueller, Ito & Kunisch, SIAM J. Optim.
+2003: semismooth Newton, usually converges in a few sweeps).  Should it cycle,
+a primal active-set method (Nocedal & Wright 2006, Algorithm 16.3) finishes
+from a feasible point found by linear programming; it terminates finitely
+because C is positive definite.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from scipy.optimize import linprog
+
+# A node counts as closed when its gap is below GAP_TOLERANCE times the
+# largest displacement scale of the problem; forces below FORCE_TOLERANCE times
+# the largest force are treated as zero.  Both are far below what the
+# discretisation resolves, but above round-off of the dense solves.
+GAP_TOLERANCE = 1e-10
+FORCE_TOLERANCE = 1e-12
+
+
+class ContactError(RuntimeError):
+    """The interface cannot carry the load as asked (the CLI maps this to exit 3)."""
+
+
+@dataclass
+class LcpSolution:
+    lam: np.ndarray
+    delta: np.ndarray
+    gap: np.ndarray
+    iterations: int
+    method: str
+
+
+def _kkt(C, g, B, e, S):
+    """Equality-constrained subproblem on the closed set S; None if the
+    balance equations cannot be met with S (a free body has no closed node)."""
+    s = np.flatnonzero(S)
+    nb = B.shape[1]
+    Bs = B[s]
+    if nb and np.linalg.matrix_rank(Bs) < nb:
+        return None
+    M = np.zeros((s.size + nb, s.size + nb))
+    M[:s.size, :s.size] = C[np.ix_(s, s)]
+    M[:s.size, s.size:] = Bs
+    M[s.size:, :s.size] = Bs.T
+    y = np.linalg.solve(M, np.concatenate([-g[s], -e]))
+    lam = np.zeros(g.size)
+    lam[s] = y[:s.size]
+    return lam, y[s.size:]
+
+
+def _gap(C, g, B, lam, delta):
+    return g + C @ lam + B @ delta
+
+
+def _scales(C, g, B, e, lam):
+    force = max(np.abs(lam).max(initial=0.0), np.abs(e).max(initial=0.0), 1e-300)
+    disp = max(np.abs(g).max(initial=0.0), np.abs(C).max(initial=0.0) * force, 1e-300)
+    return GAP_TOLERANCE * disp, FORCE_TOLERANCE * force
+
+
+def primal_dual(C, g, B, e, max_iter=100):
+    n = g.size
+    S = np.ones(n, dtype=bool)       # start from full contact
+    for it in range(1, max_iter + 1):
+        sol = _kkt(C, g, B, e, S)
+        if sol is None:
+            return None
+        lam, delta = sol
+        gap = _gap(C, g, B, lam, delta)
+        tol_g, tol_f = _scales(C, g, B, e, lam)
+        new = np.where(S, lam > tol_f, gap < -tol_g)
+        if np.array_equal(new, S):
+            return LcpSolution(np.where(S, np.maximum(lam, 0.0), 0.0), delta, gap, it, "pdas")
+        S = new
+    return None
+
+
+def _feasible_start(B, e):
+    n, nb = B.shape
+    if nb == 0:
+        return np.zeros(n)
+    res = linprog(np.ones(n), A_eq=B.T, b_eq=-e, bounds=(0, None), method="highs")
+    if res.status != 0:
+        return None
+    return np.maximum(res.x, 0.0)
+
+
+def primal_active_set(C, g, B, e, max_iter=None):
+    n, nb = B.shape
+    if nb and np.linalg.matrix_rank(B) < nb:
+        raise ContactError("the axial positions of the free bodies are not fixed by their "
+                           "contacts (a free body only touches other free bodies)")
+    lam = _feasible_start(B, e)
+    if lam is None:
+        return None
+    F = lam > 0
+    # keep the working set independent: every free body needs a free node
+    for i in np.argsort(g):
+        if nb == 0 or np.linalg.matrix_rank(B[F]) == nb:
+            break
+        if not F[i] and np.any(B[i] != 0) and \
+                np.linalg.matrix_rank(B[F | (np.arange(n) == i)]) > np.linalg.matrix_rank(B[F]):
+            F[i] = True
+    max_iter = max_iter or 10 * n + 50
+    for it in range(1, max_iter + 1):
+        y, delta = _kkt(C, g, B, e, F)
+        p = np.where(F, y - lam, 0.0)
+        tol_g, tol_f = _scales(C, g, B, e, np.abs(lam) + np.abs(y))
+        if np.abs(p).max(initial=0.0) <= tol_f:
+            lam = np.where(F, np.maximum(y, 0.0), 0.0)
+            gap = _gap(C, g, B, lam, delta)
+            gap_w = np.where(F, np.inf, gap)
+            i = int(np.argmin(gap_w)) if n else 0
+            if n == 0 or gap_w[i] >= -tol_g:
+                return LcpSolution(lam, delta, gap, it, "primal active set")
+            F[i] = True
+            continue
+        blocking = F & (p < -tol_f)     # round-off must not block a step
+        ratios = np.full(n, np.inf)
+        ratios[blocking] = -lam[blocking] / p[blocking]
+        j = int(np.argmin(ratios))
+        alpha = min(1.0, ratios[j])
+        lam = lam + alpha * p
+        if alpha < 1.0:
+            F[j] = False
+            lam[j] = 0.0
+    raise ContactError(f"contact solve did not converge in {max_iter} active-set steps")
+
+
+def solve_lcp(C, g, B, e) -> LcpSolution:
+    """Exact solution of the condensed contact problem (see module docstring)."""
+    if g.size == 0:
+        raise ContactError("no contact nodes: the bodies cannot transmit the load")
+    sol = primal_dual(C, g, B, e)
+    if sol is None:
+        sol = primal_active_set(C, g, B, e)
+    if sol is None:
+        raise ContactError("no compressive contact forces can balance the loads on the "
+                           "axially free bodies (the interface would have to pull)")
+    return sol

@@ -1,0 +1,222 @@
+"""Contact solve of an :class:`FeModel`: one factorisation, condensation onto the
+interface normal forces, exact solution of the small contact problem."""
+from __future__ import annotations
+
+import time
+from contextlib import contextmanager
+
+import numpy as np
+import scipy.sparse as sp
+from scipy.sparse.linalg import splu
+from skfem import Basis, asm
+from threadpoolctl import threadpool_limits
+
+from .assembly import System, assemble, axial_dofs_of_body
+from .forms import axial_moment
+from .lcp import ContactError, LcpSolution, solve_lcp
+from .model import FeModel, FeResult, InterfaceResult
+from .pairing import PairedFace, gap_operator, pair_face
+from .stress import vertex_stress
+
+
+@contextmanager
+def _clock(timings, key):
+    t = time.perf_counter()
+    yield
+    timings[key] = timings.get(key, 0.0) + time.perf_counter() - t
+
+
+def factorise(K):
+    # MMD on A^T + A with symmetric mode keeps the fill-reducing order through
+    # pivoting; design.md §6 measured COLAMD 2x and unsymmetric pivoting 10x slower
+    return splu(sp.csc_matrix(K), permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
+                options=dict(SymmetricMode=True))
+
+
+def _face_body(system: System, face: str) -> int:
+    verts = np.unique(system.mesh.facets[:, system.facets[face]])
+    return int(np.bincount(system.dof_body[system.basis.nodal_dofs[1, verts]]).argmax())
+
+
+def restraints(system: System) -> tuple[list[int], np.ndarray]:
+    """Free bodies and one pinned axial dof per free body.
+
+    The pin only removes the zero-energy axial translation from K; the
+    translation itself comes back as an unknown fixed by the body's balance.
+    """
+    model = system.model
+    nb = len(model.body_names)
+    if len(model.body_axially_free) != nb:
+        raise ValueError("one body_axially_free flag per body expected")
+    held = np.zeros(nb, dtype=bool)
+    for s in model.supports:
+        if s.axial_stiffness is None or s.axial_stiffness > 0:
+            held[_face_body(system, s.face)] = True
+    free, pins = [], []
+    fixed = set(system.fixed.tolist())
+    for j, name in enumerate(model.body_names):
+        if model.body_axially_free[j] and held[j]:
+            raise ValueError(f"body {name!r} is marked axially free but also has an axial "
+                             "support; drop one of the two")
+        if not model.body_axially_free[j] and not held[j]:
+            raise ValueError(f"body {name!r} has no axial support and is not marked axially "
+                             "free: its axial position is undetermined")
+        if model.body_axially_free[j]:
+            z = [d for d in axial_dofs_of_body(system, j) if d not in fixed]
+            if not z:
+                raise ValueError(f"body {name!r} has no elements")
+            free.append(j)
+            pins.append(z[0])
+    return free, np.array(pins, dtype=np.int64)
+
+
+class Prepared:
+    """Factorised stiffness with supports and pins removed."""
+
+    def __init__(self, system: System, timings: dict):
+        self.system = system
+        self.free_bodies, pins = restraints(system)
+        N = system.basis.N
+        keep = np.ones(N, dtype=bool)
+        keep[system.fixed] = False
+        keep[pins] = False
+        self.inner = np.flatnonzero(keep)
+        with _clock(timings, "factorisation"):
+            K = system.K[self.inner][:, self.inner]
+            self.lu = factorise(K)
+        T = np.zeros((N, len(self.free_bodies)))
+        for c, j in enumerate(self.free_bodies):
+            T[axial_dofs_of_body(system, j), c] = 1.0
+        self.T = T                                   # rigid axial translation of free bodies
+
+    def expand(self, u_inner, delta):
+        u = np.zeros(self.system.basis.N)
+        u[self.inner] = u_inner
+        return u + self.T @ delta
+
+
+def linear_solve(model: FeModel) -> tuple[np.ndarray, dict]:
+    """One linear elastic solve of the model's mesh (contacts ignored, free
+    bodies pinned), as the timing yardstick for :func:`solve`."""
+    timings = {}
+    t0 = time.perf_counter()
+    with threadpool_limits(limits=1):
+        with _clock(timings, "assembly"):
+            system = assemble(model)
+        prep = Prepared(system, timings)
+        with _clock(timings, "solve"):
+            u = prep.expand(prep.lu.solve(system.f[prep.inner]), np.zeros(len(prep.free_bodies)))
+    timings["total"] = time.perf_counter() - t0
+    return u, timings
+
+
+def solve(model: FeModel) -> FeResult:
+    """Axisymmetric elastic contact solve; raises :class:`ContactError` when the
+    interface cannot carry the load, ValueError for an ill-posed model."""
+    timings = {}
+    t0 = time.perf_counter()
+    # the dense work below is small: multithreaded BLAS only adds overhead (design.md §6)
+    with threadpool_limits(limits=1):
+        with _clock(timings, "assembly"):
+            system = assemble(model)
+            faces = [pair_face(system, p) for p in model.contacts]
+            G, g0 = gap_operator(system, faces)
+        prep = Prepared(system, timings)
+        nb = len(prep.free_bodies)
+        with _clock(timings, "condensation"):
+            Gi = G[prep.inner].toarray()
+            X = prep.lu.solve(np.column_stack([system.f[prep.inner], Gi]))
+            u_load, KinvG = X[:, 0], X[:, 1:]
+            C = Gi.T @ KinvG
+            C = 0.5 * (C + C.T)
+            g = g0 + Gi.T @ u_load
+            B = (G.T @ prep.T) if nb else np.zeros((g.size, 0))
+            e = system.body_load[prep.free_bodies]
+        with _clock(timings, "contact"):
+            _check_free_bodies(system, faces, prep.free_bodies)
+            sol = solve_lcp(C, g, B, e) if g.size else LcpSolution(
+                np.zeros(0), np.zeros(0), np.zeros(0), 0, "no contact")
+        with _clock(timings, "stress"):
+            u = prep.expand(u_load + KinvG @ sol.lam, sol.delta)
+            stress = vertex_stress(system, u)
+    interfaces = _interfaces(faces, sol)
+    result = FeResult(
+        displacement=u[system.basis.nodal_dofs],
+        stress=stress,
+        interfaces=interfaces,
+        rigid_approach={model.body_names[j]: mean_axial_displacement(system, u, j)
+                        for j in prep.free_bodies},
+        axial_force_balance_error=_balance_error(G, sol.lam, prep, e),
+        dofs=int(system.basis.N),
+        timings=timings,
+        contact_iterations=sol.iterations,
+    )
+    timings["total"] = time.perf_counter() - t0
+    return result
+
+
+def mean_axial_displacement(system: System, u: np.ndarray, j: int) -> float:
+    """Volume average of u_z over body j: its rigid axial translation in a
+    sense that does not depend on where the solver pinned it."""
+    elements = np.flatnonzero(np.asarray(system.model.element_body) == j)
+    w = asm(axial_moment, Basis(system.mesh, system.basis.elem, elements=elements))
+    return float((w @ u) / (w @ _axial_indicator(system, j)))
+
+
+def _axial_indicator(system: System, j: int) -> np.ndarray:
+    t = np.zeros(system.basis.N)
+    t[axial_dofs_of_body(system, j)] = 1.0
+    return t
+
+
+def _check_free_bodies(system, faces: list[PairedFace], free_bodies):
+    touched = {f.body_a for f in faces} | {f.body_b for f in faces}
+    for j in free_bodies:
+        if j not in touched:
+            raise ContactError(f"body {system.model.body_names[j]!r} is axially free but has "
+                               "no contact face to rest on")
+
+
+def _interfaces(faces, sol) -> list[InterfaceResult]:
+    out, start = [], 0
+    for face in faces:
+        k = face.gap0.size
+        lam = sol.lam[start:start + k]
+        gap = np.maximum(sol.gap[start:start + k], 0.0)
+        start += k
+        closed = lam > 0
+        if not np.any(closed):
+            raise ContactError(f"interface {face.pair.name!r} does not close under the load")
+        # a node without ring area (P2 vertex on the axis) carries no force, so
+        # its status and pressure are read from its neighbour along the face
+        has_area = face.area > 1e-12 * max(face.area.max(initial=0.0), 1e-300)
+        near = _nearest_with_area(has_area)
+        pressure = np.where(has_area, lam / np.where(has_area, face.area, 1.0), 0.0)[near]
+        closed = closed[near]
+        out.append(InterfaceResult(
+            name=face.pair.name, r=face.xy[0].copy(), z=face.xy[1].copy(),
+            pressure=np.maximum(pressure, 0.0), normal_force=lam.copy(),
+            tributary_area=face.area.copy(), gap=np.where(closed, 0.0, gap),
+            in_contact=closed))
+    return out
+
+
+def _nearest_with_area(has_area):
+    idx = np.flatnonzero(has_area)
+    near = np.arange(has_area.size)
+    if idx.size:
+        for i in np.flatnonzero(~has_area):
+            near[i] = idx[np.argmin(np.abs(idx - i))]
+    return near
+
+
+def _balance_error(G, lam, prep: Prepared, e) -> float:
+    if not prep.free_bodies:
+        return 0.0
+    f_contact = G @ lam
+    err = 0.0
+    for c, _ in enumerate(prep.free_bodies):
+        on_body = prep.T[:, c] @ f_contact
+        scale = max(abs(e[c]), np.abs(prep.T[:, c] * f_contact).sum(), 1e-300)
+        err = max(err, abs(on_body + e[c]) / scale)
+    return float(err)
