@@ -12,6 +12,7 @@ from skfem import Basis, asm
 from threadpoolctl import threadpool_limits
 
 from .assembly import System, assemble, axial_dofs_of_body
+from .condense import condense
 from .forms import axial_moment
 from .lcp import ContactError, LcpSolution, solve_lcp
 from .model import FeModel, FeResult, InterfaceResult
@@ -73,7 +74,7 @@ def restraints(system: System) -> tuple[list[int], np.ndarray]:
 class Prepared:
     """Factorised stiffness with supports and pins removed."""
 
-    def __init__(self, system: System, timings: dict):
+    def __init__(self, system: System, timings: dict, factor: bool = True):
         self.system = system
         self.free_bodies, pins = restraints(system)
         N = system.basis.N
@@ -81,9 +82,11 @@ class Prepared:
         keep[system.fixed] = False
         keep[pins] = False
         self.inner = np.flatnonzero(keep)
-        with _clock(timings, "factorisation"):
-            K = system.K[self.inner][:, self.inner]
-            self.lu = factorise(K)
+        self.K = system.K[self.inner][:, self.inner].tocsc()
+        self.lu = None
+        if factor:
+            with _clock(timings, "factorisation"):
+                self.lu = factorise(self.K)
         T = np.zeros((N, len(self.free_bodies)))
         for c, j in enumerate(self.free_bodies):
             T[axial_dofs_of_body(system, j), c] = 1.0
@@ -121,14 +124,25 @@ def solve(model: FeModel) -> FeResult:
             system = assemble(model)
             faces = [pair_face(system, p) for p in model.contacts]
             G, g0 = gap_operator(system, faces)
-        prep = Prepared(system, timings)
+        prep = Prepared(system, timings, factor=False)
         nb = len(prep.free_bodies)
+        f_inner = system.f[prep.inner]
+        Gi = G[prep.inner]
+        with _clock(timings, "factorisation"):
+            fast = _condensation(prep, faces)
+            if fast is None:
+                prep.lu = factorise(prep.K)
         with _clock(timings, "condensation"):
-            Gi = G[prep.inner].toarray()
-            X = prep.lu.solve(np.column_stack([system.f[prep.inner], Gi]))
-            u_load, KinvG = X[:, 0], X[:, 1:]
-            C = Gi.T @ KinvG
-            C = 0.5 * (C + C.T)
+            if fast is not None:
+                u_load = fast.solve(f_inner)
+                C = fast.compliance(Gi)
+                solve_K = fast.solve
+            else:                       # one solve per contact force
+                X = prep.lu.solve(np.column_stack([f_inner, Gi.toarray()]))
+                u_load = X[:, 0]
+                C = Gi.T @ X[:, 1:]
+                C = 0.5 * (C + C.T)
+                solve_K = prep.lu.solve
             g = g0 + Gi.T @ u_load
             B = (G.T @ prep.T) if nb else np.zeros((g.size, 0))
             e = system.body_load[prep.free_bodies]
@@ -137,7 +151,7 @@ def solve(model: FeModel) -> FeResult:
             sol = solve_lcp(C, g, B, e) if g.size else LcpSolution(
                 np.zeros(0), np.zeros(0), np.zeros(0), 0, "no contact")
         with _clock(timings, "stress"):
-            u = prep.expand(u_load + KinvG @ sol.lam, sol.delta)
+            u = prep.expand(solve_K(f_inner + Gi @ sol.lam), sol.delta)
             stress = vertex_stress(system, u)
     interfaces = _interfaces(faces, sol)
     result = FeResult(
@@ -153,6 +167,22 @@ def solve(model: FeModel) -> FeResult:
     )
     timings["total"] = time.perf_counter() - t0
     return result
+
+
+def _condensation(prep: Prepared, faces: list[PairedFace]):
+    """Normal-component condensation (fem/condense.py), or None where it does not apply."""
+    if not faces:
+        return None
+    position = np.full(prep.system.basis.N, -1, dtype=np.int64)
+    position[prep.inner] = np.arange(prep.inner.size)
+    node_dofs = np.vstack([position[f.dofs_a] for f in faces] + [position[f.dofs_b] for f in faces])
+    normals = np.vstack([np.tile(_unit_normal(f), (f.dofs_a.shape[0], 1)) for f in faces] * 2)
+    return condense(prep.K, node_dofs, normals)
+
+
+def _unit_normal(face: PairedFace) -> np.ndarray:
+    n = np.asarray(face.pair.normal_a, dtype=float)
+    return n / np.linalg.norm(n)
 
 
 def mean_axial_displacement(system: System, u: np.ndarray, j: int) -> float:
