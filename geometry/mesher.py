@@ -133,20 +133,12 @@ def _build(gmsh, section: Section) -> None:
     near_face = field.add("Distance")
     field.setNumbers(near_face, "CurvesList", face_lines)
     field.setNumber(near_face, "Sampling", 200)
-    grade_face = field.add("Threshold")
-    field.setNumber(grade_face, "InField", near_face)
-    field.setNumber(grade_face, "SizeMin", section.face_size)
-    field.setNumber(grade_face, "SizeMax", section.body_size)
-    field.setNumber(grade_face, "DistMin", section.face_size)
-    field.setNumber(grade_face, "DistMax", 4.0 * section.body_size)
     near_ends = field.add("Distance")
     field.setNumbers(near_ends, "PointsList", [tag[p] for p in section.refine_points])
-    grade_ends = field.add("Threshold")
-    field.setNumber(grade_ends, "InField", near_ends)
-    field.setNumber(grade_ends, "SizeMin", section.edge_size)
-    field.setNumber(grade_ends, "SizeMax", section.body_size)
-    field.setNumber(grade_ends, "DistMin", section.edge_size)
-    field.setNumber(grade_ends, "DistMax", 8.0 * section.face_size)
+    grade_face = _grade(field, near_face, section.face_size, section.body_size,
+                        section.face_size, 4.0 * section.body_size)
+    grade_ends = _grade(field, near_ends, section.edge_size, section.body_size,
+                        section.edge_size, 8.0 * section.face_size)
     # thin parts (disc cores, separators, rims) get at least about two elements through
     # their thickness; 2·area/perimeter is the thickness of a long strip
     caps = []
@@ -168,6 +160,15 @@ def _build(gmsh, section: Section) -> None:
                           ("Mesh.MeshSizeFromCurvature", 0), ("Mesh.Algorithm", 6),
                           ("Mesh.MeshSizeMax", section.body_size)):
         gmsh.option.setNumber(option, value)
+
+
+def _grade(field, distance, size_min, size_max, dist_min, dist_max) -> int:
+    """Element size growing from size_min (within dist_min) to size_max (beyond dist_max)."""
+    tag = field.add("Threshold")
+    for key, value in (("InField", distance), ("SizeMin", size_min), ("SizeMax", size_max),
+                       ("DistMin", dist_min), ("DistMax", dist_max)):
+        field.setNumber(tag, key, value)
+    return tag
 
 
 def _to_section_mesh(raw: meshio.Mesh, section: Section, order: int) -> SectionMesh:
