@@ -52,9 +52,12 @@ class Case:
     misalignment: Any
     requirement: Any
     mesh: Any
+    wear: Any
+    verification: Any
     input_sha256: str = ""
     source: str = ""
     warnings: tuple = ()
+    tables_given: frozenset = frozenset()     # tables present in the file (e.g. [wear] asks for wear-in)
 
     @property
     def disc_count(self) -> int:
@@ -108,8 +111,9 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
         raise CaseError(problems)
     name = values.get("name") or default_name
     tables = {t: cls(**{k: values.get(f"{t}.{k}") for k in SCHEMA[t]}) for t, cls in _TABLE_CLASSES.items()}
+    given = frozenset(k for k, v in data.items() if isinstance(v, dict))
     return Case(kind=kind, name=name, description=values.get("description") or "", input_sha256=sha256,
-                source=source, warnings=tuple(warnings), **tables)
+                source=source, warnings=tuple(warnings), tables_given=given, **tables)
 
 
 def _flatten(data: dict, problems: list[str]) -> dict[str, Any]:
@@ -177,6 +181,11 @@ def _check_value(full: str, value: Any, spec: Key, problems: list[str]):
         if not isinstance(value, str):
             problems.append(f"{full} = {value!r}: must be text; allowed: {allowed}")
             return None
+    elif spec.kind is bool:
+        if not isinstance(value, bool):
+            problems.append(f"{full} = {value!r}: must be true or false")
+            return None
+        return value
     elif isinstance(value, bool) or not isinstance(value, (int, float)):
         problems.append(f"{full} = {value!r}: must be a number; allowed: {allowed}")
         return None
@@ -201,7 +210,7 @@ def _check_value(full: str, value: Any, spec: Key, problems: list[str]):
 
 
 def _in_range(value, spec: Key) -> bool:
-    if spec.kind is str:
+    if spec.kind in (str, bool):
         return True
     if spec.low is not None and (value < spec.low or (value == spec.low and not spec.low_inclusive)):
         return False
@@ -301,6 +310,8 @@ def _cross_checks(v: dict, kind: str, problems: list[str]) -> list[str]:
                             f"allowed: -{t:g} < coning < {t:g} mm")
     _check_load(v, kind, problems)
     _check_support(v, problems)
+    if "wear.wear_coefficient" in v:
+        _check_wear(v, problems)
     _check_mesh(v, kind, problems)
     return warnings
 
@@ -322,6 +333,21 @@ def _check_load(v: dict, kind: str, problems: list[str]) -> None:
         where = "the inner cone's back face"
     if not lo < ring < hi:
         problems.append(f"load.ring_radius = {ring:g}: must lie on {where}; allowed: {lo:g} < value < {hi:g} mm")
+
+
+def _check_wear(v: dict, problems: list[str]) -> None:
+    duty = [k for k in ("wear.engagements", "wear.slip_speed", "wear.slip_time") if k in v]
+    target = "wear.target_wear_volume" in v
+    if duty and len(duty) < 3:
+        missing = sorted({"wear.engagements", "wear.slip_speed", "wear.slip_time"} - set(duty))
+        problems.append(f"{', '.join(missing)}: missing; the wear duty needs engagements, slip_speed and "
+                        "slip_time together")
+    if duty and target:
+        problems.append(f"wear.target_wear_volume = {v['wear.target_wear_volume']:g}: give either a target "
+                        "wear volume or the engagement duty, not both")
+    if v["wear.max_wear_depth"] >= v["lining.thickness"]:
+        problems.append(f"wear.max_wear_depth = {v['wear.max_wear_depth']:g}: must be less than the lining "
+                        f"thickness; allowed: 0 < value < {v['lining.thickness']:g} mm")
 
 
 def _check_support(v: dict, problems: list[str]) -> None:

@@ -208,6 +208,31 @@ SCHEMA: dict[str, dict[str, Key]] = {
                              low=1, high=20, low_inclusive=True, high_inclusive=True),
         "element_order": Key("", "1 = linear, 2 = quadratic triangles", int, default=2, choices=(1, 2)),
     },
+    "wear": {
+        "wear_coefficient": Key("mm³/(N·m)", "Archard wear coefficient k of the lining (wear depth rate = "
+                                "k p v); published values scatter widely, so wear results are relative",
+                                default=2.0e-6, low=0.0),
+        "engagements": Key("", "number of engagements to simulate (with slip_speed and slip_time)", int,
+                           low=1, low_inclusive=True),
+        "slip_speed": Key("rpm", "relative speed of the friction faces at the start of each engagement",
+                          low=0.0),
+        "slip_time": Key("s", "slip duration of one engagement (speed falls linearly to zero)", low=0.0),
+        "target_wear_volume": Key("mm³", "or simply: wear until this volume is worn off the lining", low=0.0),
+        "step_cap": Key("", "largest wear increment of a step, as a fraction of the current elastic approach",
+                        default=0.05, low=0.0, high=1.0, high_inclusive=True),
+        "steady_tolerance": Key("", "steady state: relative change of p·r over the contact per step below "
+                                "this", default=1e-3, low=0.0, high=0.5),
+        "max_wear_depth": Key("mm", "lining wear limit (default: 80 % of the lining thickness)",
+                              default=lambda c: _r(0.8 * c["lining.thickness"], 4), low=0.0),
+        "max_steps": Key("", "most wear steps", int, default=400, low=1, low_inclusive=True, high=100000,
+                         high_inclusive=True),
+    },
+    "verification": {
+        "mesh_study": Key("", "solve on three meshes (refinement ratio below) and report observed order, "
+                          "Richardson extrapolation and the grid convergence index", bool, default=True),
+        "refinement_ratio": Key("", "constant refinement ratio between the three meshes", default=1.5,
+                                low=1.3, high=3.0, low_inclusive=True, high_inclusive=True),
+    },
 }
 
 
@@ -228,6 +253,8 @@ def describe_range(key: Key) -> str:
         return f"value {'≥' if key.low_inclusive else '>'} {key.low:g}{unit}"
     lo = "" if key.low is None else (f"{key.low:g} ≤ " if key.low_inclusive else f"{key.low:g} < ")
     hi = "" if key.high is None else (f" ≤ {key.high:g}" if key.high_inclusive else f" < {key.high:g}")
+    if key.kind is bool:
+        return "true or false"
     if not lo and not hi:
         return "any text" if key.kind is str else "any number"
     return f"{lo}value{hi}{unit}"
@@ -241,6 +268,8 @@ def reference_markdown() -> str:
             full = f"{table}.{name}" if table else name
             if key.required:
                 default = "required"
+            elif isinstance(key.default, bool):
+                default = str(key.default).lower()
             elif callable(key.default):
                 default = "derived"
             elif key.default is None:
@@ -253,3 +282,18 @@ def reference_markdown() -> str:
 
 
 Default = Callable[[dict], Any]
+
+
+def _update_readme(path="README.md") -> None:
+    """Rewrite the key table of the README between its markers: ``python3 -m clutchfe.schema``."""
+    from pathlib import Path
+    readme = Path(path)
+    text = readme.read_text(encoding="utf-8")
+    start, end = "<!-- case keys: start -->", "<!-- case keys: end -->"
+    head, rest = text.split(start)
+    _, tail = rest.split(end)
+    readme.write_text(f"{head}{start}\n{reference_markdown()}\n{end}{tail}", encoding="utf-8")
+
+
+if __name__ == "__main__":
+    _update_readme()

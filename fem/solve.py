@@ -113,60 +113,102 @@ def linear_solve(model: FeModel) -> tuple[np.ndarray, dict]:
     return u, timings
 
 
+class ContactSolver:
+    """Assemble and condense once; solve the contact for many gaps and load levels.
+
+    Everything that does not change when only the initial gap (misalignment, wear)
+    or the size of the load changes is done here once: assembly, one factorisation,
+    the compliance C between the contact normal forces, and the response to the
+    model's loads.  :meth:`solve` then costs one small complementarity problem
+    (plus one back-substitution when displacement and stress fields are wanted).
+    """
+
+    def __init__(self, model: FeModel):
+        self.timings: dict[str, float] = {}
+        t0 = time.perf_counter()
+        timings = self.timings
+        with threadpool_limits(limits=1):
+            with _clock(timings, "assembly"):
+                self.system = system = assemble(model)
+                self.faces = faces = [pair_face(system, p) for p in model.contacts]
+                self.G, self.g0 = gap_operator(system, faces)
+            self.prep = prep = Prepared(system, timings, factor=False)
+            self.f_inner = system.f[prep.inner]
+            self.Gi = self.G[prep.inner]
+            with _clock(timings, "factorisation"):
+                fast = _condensation(prep, faces)
+                if fast is None:
+                    prep.lu = factorise(prep.K)
+            with _clock(timings, "condensation"):
+                if fast is not None:
+                    self.u_load = fast.solve(self.f_inner)
+                    self.C = fast.compliance(self.Gi)
+                    self._solve_K = fast.solve
+                else:                       # one solve per contact force
+                    X = prep.lu.solve(np.column_stack([self.f_inner, self.Gi.toarray()]))
+                    self.u_load = X[:, 0]
+                    C = self.Gi.T @ X[:, 1:]
+                    self.C = 0.5 * (C + C.T)
+                    self._solve_K = prep.lu.solve
+                self.g_load = self.Gi.T @ self.u_load
+                nb = len(prep.free_bodies)
+                self.B = (self.G.T @ prep.T) if nb else np.zeros((self.g0.size, 0))
+                self.e = system.body_load[prep.free_bodies]
+            _check_free_bodies(system, faces, prep.free_bodies)
+        timings["prepare"] = time.perf_counter() - t0
+
+    @property
+    def interface_nodes(self) -> list[np.ndarray]:
+        """(2, k) r, z of the FE nodes of every interface, in the order of the results."""
+        return [face.xy for face in self.faces]
+
+    @property
+    def initial_gaps(self) -> list[np.ndarray]:
+        return [face.gap0.copy() for face in self.faces]
+
+    def solve(self, gaps: list[np.ndarray] | None = None, load_scale: float = 1.0,
+              fields: bool = True) -> FeResult:
+        """Contact under ``load_scale`` times the model's loads.
+
+        ``gaps``: initial normal gap (mm) at every FE node of each interface, replacing
+        the model's (e.g. with wear depth added); ``fields=False`` skips displacement
+        and stress fields (interface results only, for loops over many states).
+        """
+        timings = {k: v for k, v in self.timings.items() if k != "prepare"}
+        t0 = time.perf_counter()
+        prep, system = self.prep, self.system
+        g0 = self.g0 if gaps is None else np.concatenate([np.asarray(g, float) for g in gaps])
+        if g0.shape != self.g0.shape or not np.all(np.isfinite(g0)):
+            raise ValueError("one finite gap per interface node expected")
+        e = load_scale * self.e
+        with threadpool_limits(limits=1):
+            with _clock(timings, "contact"):
+                g = g0 + load_scale * self.g_load
+                sol = solve_lcp(self.C, g, self.B, e) if g.size else LcpSolution(
+                    np.zeros(0), np.zeros(0), np.zeros(0), 0, "no contact")
+            interfaces = _interfaces(self.faces, sol)
+            if fields:
+                with _clock(timings, "stress"):
+                    u = prep.expand(self._solve_K(load_scale * self.f_inner + self.Gi @ sol.lam), sol.delta)
+                    stress = vertex_stress(system, u)
+                displacement = u[system.basis.nodal_dofs]
+                approach = {system.model.body_names[j]: mean_axial_displacement(system, u, j)
+                            for j in prep.free_bodies}
+            else:
+                displacement, stress = np.zeros((2, 0)), {}
+                approach = {system.model.body_names[j]: float(d) for j, d in
+                            zip(prep.free_bodies, np.atleast_1d(sol.delta))}
+        timings["total"] = self.timings["prepare"] + time.perf_counter() - t0
+        return FeResult(
+            displacement=displacement, stress=stress, interfaces=interfaces, rigid_approach=approach,
+            axial_force_balance_error=_balance_error(self.G, sol.lam, prep, e),
+            dofs=int(system.basis.N), timings=timings, contact_iterations=sol.iterations)
+
+
 def solve(model: FeModel) -> FeResult:
     """Axisymmetric elastic contact solve; raises :class:`ContactError` when the
     interface cannot carry the load, ValueError for an ill-posed model."""
-    timings = {}
-    t0 = time.perf_counter()
-    # the dense work below is small: multithreaded BLAS only adds overhead (design.md §6)
-    with threadpool_limits(limits=1):
-        with _clock(timings, "assembly"):
-            system = assemble(model)
-            faces = [pair_face(system, p) for p in model.contacts]
-            G, g0 = gap_operator(system, faces)
-        prep = Prepared(system, timings, factor=False)
-        nb = len(prep.free_bodies)
-        f_inner = system.f[prep.inner]
-        Gi = G[prep.inner]
-        with _clock(timings, "factorisation"):
-            fast = _condensation(prep, faces)
-            if fast is None:
-                prep.lu = factorise(prep.K)
-        with _clock(timings, "condensation"):
-            if fast is not None:
-                u_load = fast.solve(f_inner)
-                C = fast.compliance(Gi)
-                solve_K = fast.solve
-            else:                       # one solve per contact force
-                X = prep.lu.solve(np.column_stack([f_inner, Gi.toarray()]))
-                u_load = X[:, 0]
-                C = Gi.T @ X[:, 1:]
-                C = 0.5 * (C + C.T)
-                solve_K = prep.lu.solve
-            g = g0 + Gi.T @ u_load
-            B = (G.T @ prep.T) if nb else np.zeros((g.size, 0))
-            e = system.body_load[prep.free_bodies]
-        with _clock(timings, "contact"):
-            _check_free_bodies(system, faces, prep.free_bodies)
-            sol = solve_lcp(C, g, B, e) if g.size else LcpSolution(
-                np.zeros(0), np.zeros(0), np.zeros(0), 0, "no contact")
-        with _clock(timings, "stress"):
-            u = prep.expand(solve_K(f_inner + Gi @ sol.lam), sol.delta)
-            stress = vertex_stress(system, u)
-    interfaces = _interfaces(faces, sol)
-    result = FeResult(
-        displacement=u[system.basis.nodal_dofs],
-        stress=stress,
-        interfaces=interfaces,
-        rigid_approach={model.body_names[j]: mean_axial_displacement(system, u, j)
-                        for j in prep.free_bodies},
-        axial_force_balance_error=_balance_error(G, sol.lam, prep, e),
-        dofs=int(system.basis.N),
-        timings=timings,
-        contact_iterations=sol.iterations,
-    )
-    timings["total"] = time.perf_counter() - t0
-    return result
+    return ContactSolver(model).solve()
 
 
 def _condensation(prep: Prepared, faces: list[PairedFace]):

@@ -130,7 +130,8 @@ def test_required_keys_alone_make_a_sensible_clutch(cone_dict, plate_dict):
 
 def test_schema_defaults_cover_every_optional_key_or_say_optional():
     optional = {"name", "load.ring_radius", "lining.allowable_pressure", "support.axial_stiffness",
-                "support.radial_stiffness", "requirement.required_torque", "interface.semi_cone_angle"}
+                "support.radial_stiffness", "requirement.required_torque", "interface.semi_cone_angle",
+                "wear.engagements", "wear.slip_speed", "wear.slip_time", "wear.target_wear_volume"}
     for table, keys in SCHEMA.items():
         for name, key in keys.items():
             full = f"{table}.{name}" if table else name
