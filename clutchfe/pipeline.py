@@ -5,6 +5,7 @@ Each stage takes and returns plain data; this module only wires them and writes 
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 from pathlib import Path
 
 from rich.table import Table
@@ -95,10 +96,38 @@ def fe_model_of(case: Case, section, mesh):
         contacts=contacts, element_order=case.mesh.element_order)
 
 
-def solve_case(case: Case, section=None, mesh=None):
-    """Mesh (unless given), solve and compare: returns (mesh, FeResult, comparison dict)."""
-    from .comparison import compare, hand_capacity
-    from .fem import ContactError, solve
+@dataclass
+class SolvedCase:
+    """Everything one axisymmetric solve produced, for later stages (wear-in, reports, studies)."""
+
+    case: Case
+    section: object
+    mesh: object
+    model: object           # fem.FeModel
+    solver: object          # fem.ContactSolver: condensed once, reusable for new gaps and load levels
+    fe: object              # fem.FeResult
+    hand: object            # comparison.HandCapacity
+    result: dict            # comparison.compare(...)
+
+
+# Extra analyses of a run: each takes (solved case, summary dict, scratch results folder), adds
+# summary keys and writes its files there.  ANALYSES run before the standard files are written,
+# REPORTS after (they may read every file of the folder).
+ANALYSES: list = []
+REPORTS: list = []
+
+
+def hand_of(case: Case):
+    from .comparison import hand_capacity
+    itf = case.interface
+    return hand_capacity(itf.inner_radius, itf.outer_radius, itf.semi_cone_angle, itf.friction_coefficient,
+                         itf.friction_surfaces, case.load.axial_force)
+
+
+def solved_case(case: Case, section=None, mesh=None) -> SolvedCase:
+    """Mesh (unless given), condense, solve and compare."""
+    from . import fem
+    from .comparison import compare
     from .geometry import mesh_section
 
     section = section if section is not None else section_of(case)
@@ -107,15 +136,21 @@ def solve_case(case: Case, section=None, mesh=None):
         key = "axis_tilt" if case.misalignment.axis_tilt else "radial_offset"
         raise CaseError([f"misalignment.{key} = {getattr(case.misalignment, key):g}: the non-axisymmetric "
                          "solve is not in this version; allowed here: 0"])
+    model = fe_model_of(case, section, mesh)
     try:
-        fe = solve(fe_model_of(case, section, mesh))
-    except ContactError as exc:
+        solver = fem.ContactSolver(model)
+        fe = solver.solve()
+    except fem.ContactError as exc:
         raise PhysicsError(str(exc)) from None
-    itf = case.interface
-    hand = hand_capacity(itf.inner_radius, itf.outer_radius, itf.semi_cone_angle, itf.friction_coefficient,
-                         itf.friction_surfaces, case.load.axial_force)
+    hand = hand_of(case)
     result = compare(fe.interfaces, hand, case.requirement.required_torque, case.requirement.service_factor)
-    return mesh, fe, result
+    return SolvedCase(case, section, mesh, model, solver, fe, hand, result)
+
+
+def solve_case(case: Case, section=None, mesh=None):
+    """Mesh (unless given), solve and compare: returns (mesh, FeResult, comparison dict)."""
+    solved = solved_case(case, section, mesh)
+    return solved.mesh, solved.fe, solved.result
 
 
 def run_case(case: Case, section, folder: Path, console) -> dict:
@@ -128,12 +163,16 @@ def run_case(case: Case, section, folder: Path, console) -> dict:
         task = progress.add_task("meshing the section", total=4)
         mesh = mesh_section(section, order=1)
         progress.update(task, advance=1, description=f"solving the contact ({len(mesh.points)} nodes)")
-        mesh, fe, result = solve_case(case, section, mesh)
+        solved = solved_case(case, section, mesh)
         progress.update(task, advance=1, description="writing results")
-        summary = summary_of(case, mesh, fe, result)
+        summary = summary_of(case, solved.mesh, solved.fe, solved.result)
         with atomic_folder(folder) as tmp:
-            outputs.write_all(tmp, case, section, mesh, fe, result, summary)
-            progress.update(task, advance=1, description="pictures")
+            for analysis in ANALYSES:
+                analysis(solved, summary, tmp)
+            outputs.write_all(tmp, case, section, solved.mesh, solved.fe, solved.result, summary)
+            progress.update(task, advance=1, description="reports")
+            for report in REPORTS:
+                report(solved, summary, tmp)
         progress.update(task, advance=1)
     outputs.print_table(console, case, summary, folder)
     return summary

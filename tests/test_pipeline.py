@@ -199,7 +199,7 @@ def test_contact_failure_exits_3_with_the_reason(tmp_path, capsys, monkeypatch):
 
     def cannot_carry(model):
         raise fem.ContactError("interface s1 opens everywhere: it cannot carry the axial force")
-    monkeypatch.setattr(fem, "solve", cannot_carry)
+    monkeypatch.setattr(fem, "ContactSolver", cannot_carry)
     path = write_toml(tmp_path / "c.toml", CONE)
     assert main(["run", str(path), "--out", str(tmp_path / "r")]) == 3
     assert "cannot carry" in capsys.readouterr().err
