@@ -4,7 +4,6 @@ Each stage takes and returns plain data; this module only wires them and writes 
 """
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 from pathlib import Path
 

@@ -58,6 +58,7 @@ def section_picture(section: Section, mesh: SectionMesh, path, title: str = "") 
         centre = centres[np.argmin(np.linalg.norm(centres - centres.mean(axis=0), axis=1))]
         ax.annotate(name.replace("_", " "), centre, ha="center", va="center", fontsize=8,
                     bbox=dict(boxstyle="round,pad=0.2", fc="white", ec="0.6", alpha=0.8))
+    _draw_load_and_supports(ax, section, mesh)
     ax.axvline(0.0, color="k", lw=0.8, ls="-.")
     ax.set_xlim(left=-0.02 * r_span)
     ax.set_aspect("equal")
@@ -69,3 +70,28 @@ def section_picture(section: Section, mesh: SectionMesh, path, title: str = "") 
     fig.tight_layout()
     fig.savefig(path, dpi=130)
     plt.close(fig)
+
+
+def _draw_load_and_supports(ax, section: Section, mesh: SectionMesh) -> None:
+    """Arrows where the engagement force acts, triangles where the housing holds the part."""
+    span = float(np.ptp(mesh.points, axis=0).max())
+    length = 0.08 * span
+    load_nodes = np.unique(mesh.faces[section.load_face][:, :2])
+    r_load = mesh.points[load_nodes, 0]
+    z_top = float(mesh.points[load_nodes, 1].max())
+    if section.ring_radius is not None:
+        radii, label = [section.ring_radius], f"W = {section.axial_force:g} N on a ring r = {section.ring_radius:g} mm"
+    else:
+        radii, label = np.linspace(r_load.min(), r_load.max(), 6), f"W = {section.axial_force:g} N, uniform"
+    for r in radii:
+        ax.annotate("", xy=(r, z_top), xytext=(r, z_top + length),
+                    arrowprops=dict(arrowstyle="-|>", color="crimson", lw=1.6))
+    ax.text(float(np.mean(radii)), z_top + 1.15 * length, label, color="crimson", ha="center", va="bottom",
+            fontsize=8)
+    ax.set_ylim(top=z_top + 1.6 * length)
+    for face, marker in ((section.support_axial_face, "^"), (section.support_radial_face, ">")):
+        nodes = np.unique(mesh.faces[face][:, :2])
+        pts = mesh.points[nodes]
+        step = max(1, len(pts) // 8)
+        ax.plot(pts[::step, 0], pts[::step, 1], linestyle="none", marker=marker, color="k", markersize=6)
+    ax.plot([], [], linestyle="none", marker="^", color="k", label="housing support")

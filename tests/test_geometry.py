@@ -191,3 +191,24 @@ def test_random_valid_cones_mesh_with_matching_faces(r1, width, angle, t):
     mesh = mesh_section(section)
     pairs = mesh.interface_pairs["s1"]
     assert np.abs(mesh.points[pairs[:, 0]] - mesh.points[pairs[:, 1]]).max() <= 1e-9
+
+
+def test_mesh_command_writes_a_readable_vtu_and_a_picture(tmp_path, capsys):
+    import json
+
+    import meshio
+
+    from clutchfe.cli import main
+    from conftest import write_toml
+
+    path = write_toml(tmp_path / "pack.toml", {**PLATE, "interface": {**PLATE["interface"], "friction_surfaces": 4}})
+    out = tmp_path / "m"
+    assert main(["mesh", str(path), "--out", str(out)]) == 0
+    vtu = meshio.read(out / "mesh.vtu")
+    assert "triangle6" in vtu.cells_dict                       # second order by default
+    info = json.loads((out / "mesh.json").read_text())
+    assert info["triangles"] == len(vtu.cells_dict["triangle6"])
+    assert set(info["interface_node_pairs"]) == {"s1", "s2", "s3", "s4"}
+    names = (out / "mesh.vtu.names.txt").read_text()
+    assert "s4_pressure_plate_face" in names and "counter_plate_back" in names
+    assert (out / "section.png").stat().st_size > 20_000
