@@ -34,6 +34,8 @@ def _parser() -> argparse.ArgumentParser:
     r.add_argument("case", type=Path)
     r.add_argument("--out", type=Path, help="output folder (default results/<case name>)")
     sub.add_parser("keys", help="print the case-file reference")
+    v = sub.add_parser("verify", help="run the solver's verification suite against published closed forms")
+    v.add_argument("--out", type=Path, help="also write verification.json and verification.csv here")
     return p
 
 
@@ -69,6 +71,11 @@ def _dispatch(args) -> int:
         from .schema import reference_markdown
         out.print(reference_markdown(), markup=False)
         return EXIT_OK
+    if args.command == "verify":
+        from .verification import print_verification, run_verification
+        rows, passed = run_verification(args.out)
+        print_verification(rows, passed, out)
+        return EXIT_OK if passed else EXIT_BUG      # a failed check means the solver is wrong
     from . import pipeline
 
     case = load_case(args.case)

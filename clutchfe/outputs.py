@@ -121,11 +121,15 @@ def print_table(console, case, summary: dict, folder: Path) -> None:
                       f"{100 * summary['capacity_margin_uniform_pressure']:+.1f}",
                       f"{100 * summary['capacity_margin_uniform_wear']:+.1f}")
     console.print(table)
+    if "torque_worn_in_Nm" in summary:
+        from .wear import wear_table
+        console.print(wear_table(summary))
     console.print(f"capacity position xi = {summary['capacity_position']:.3f} (1 = uniform pressure, "
                   f"0 = uniform wear); contact over {100 * summary['contact_area_fraction']:.1f} % of the face; "
                   f"axial balance error {summary['axial_force_balance_error']:.1e}")
     console.print(summary["verdict"], markup=False)
     for warning in summary.get("warnings", []):
         console.print(f"warning: {warning}", markup=False, style="bold red")
-    console.print(f"results: {folder}/ (summary.json, pressure.csv, solution.vtu, pressure.png, deformed.png)")
+    console.print(f"results: {folder}/ (report.html, summary.json, pressure.csv, solution.vtu, pressure.png, "
+                  "deformed.png)")
     console.print(f"caution: {summary['caution']}", markup=False, style="italic")

@@ -207,3 +207,14 @@ def summary_of(case: Case, mesh, fe, result: dict) -> dict:
     summary["versions"] = versions()
     summary["caution"] = CAUTION
     return summary
+
+
+def _register_stages() -> None:
+    # imported here: the stage modules import this module
+    from .report import add_report_to_run
+    from .wear import add_wear_to_run
+    ANALYSES.append(add_wear_to_run)
+    REPORTS.append(add_report_to_run)
+
+
+_register_stages()

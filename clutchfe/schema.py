@@ -218,10 +218,12 @@ SCHEMA: dict[str, dict[str, Key]] = {
                           low=0.0),
         "slip_time": Key("s", "slip duration of one engagement (speed falls linearly to zero)", low=0.0),
         "target_wear_volume": Key("mm³", "or simply: wear until this volume is worn off the lining", low=0.0),
-        "step_cap": Key("", "largest wear increment of a step, as a fraction of the current elastic approach",
+        "step_cap": Key("", "largest wear increment of a step, as a fraction of the current elastic approach "
+                        "(the wear depth over which the present departure from uniform wear would wear off; "
+                        "on a Winkler lining its compression)",
                         default=0.05, low=0.0, high=1.0, high_inclusive=True),
-        "steady_tolerance": Key("", "steady state: relative change of p·r over the contact per step below "
-                                "this", default=1e-3, low=0.0, high=0.5),
+        "steady_tolerance": Key("", "steady state: relative change of p·r over the contact in a step, per "
+                                "elastic approach worn in that step, below this", default=1e-3, low=0.0, high=0.5),
         "max_wear_depth": Key("mm", "lining wear limit (default: 80 % of the lining thickness)",
                               default=lambda c: _r(0.8 * c["lining.thickness"], 4), low=0.0),
         "max_steps": Key("", "most wear steps", int, default=400, low=1, low_inclusive=True, high=100000,

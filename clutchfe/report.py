@@ -1,0 +1,262 @@
+"""report.html of a run: everything a design review needs to accept or reject the design assumption.
+
+Registered in ``pipeline.REPORTS``; runs inside the atomic results folder after the standard files.
+It adds the mesh study (three meshes, GCI) and the verification table to summary.json, then writes
+one self-contained page (and report.pdf when WeasyPrint is installed: it lays out HTML without a
+browser).
+"""
+from __future__ import annotations
+
+from pathlib import Path
+
+from .report_html import esc, num, page, picture, sig, table
+from .results import write_json
+
+ASSUMPTIONS = (
+    "Axisymmetric linear elasticity of every body in the (r, z) section, quadratic triangles; the friction "
+    "lining is its own layer and material, bonded to its carrier.",
+    "Unilateral, frictionless contact in the normal direction between matching nodes of each friction face "
+    "(no penetration, no tension).",
+    "No circumferential friction in the section: torque = n μ ∫ p r dA from the normal pressure (the usual "
+    "clutch assumption).",
+    "No thermal distortion, no centrifugal load, no wear-in, no axis tilt or radial offset in this solve.",
+    "Hand formulas: uniform pressure and uniform wear (p·r = const) at the same axial force (Shigley's "
+    "Mechanical Engineering Design, clutch chapter; Juvinall & Marshek).",
+    "Material data, μ and the lining's allowable pressure are the user's inputs; μ scatters in service and "
+    "scales every torque here in proportion.",
+)
+
+
+def add_report_to_run(solved, summary: dict, folder: Path) -> None:
+    """Mesh study (when the case asks for it), verification table, summary.json again, report.html(.pdf)."""
+    from .verification import verification_rows
+
+    folder = Path(folder)
+    summary["mesh_study"] = _mesh_study_or_reason(solved)
+    rows, passed = verification_rows()
+    summary["verification"] = {"all_passed": passed, "checks": len(rows), "failed": sum(not r.passed for r in rows)}
+    html_text = report_html(solved, summary, folder, rows, passed)
+    (folder / "report.html").write_text(html_text, encoding="utf-8")
+    summary["report_pdf"] = write_pdf(html_text, folder / "report.pdf")
+    write_json(folder / "summary.json", summary)
+
+
+def _mesh_study_or_reason(solved) -> dict:
+    from .case import CaseError
+    from .pipeline import PhysicsError
+    from .verification.mesh_study import mesh_study
+
+    if not solved.case.verification.mesh_study:
+        return {"skipped": "switched off in the case ([verification] mesh_study = false)"}
+    try:
+        return mesh_study(solved)
+    except (CaseError, PhysicsError) as exc:
+        # a coarser mesh that cannot be built or solved is a finding of the study, not a failed run
+        reason = "; ".join(exc.problems) if isinstance(exc, CaseError) else str(exc)
+        return {"skipped": f"a coarser mesh could not be solved: {reason}"}
+
+
+def write_pdf(html_text: str, path: Path) -> str:
+    """report.pdf through WeasyPrint when it is installed; otherwise say why there is none."""
+    try:
+        import weasyprint
+    except (ImportError, OSError) as exc:     # OSError: the package is there but Pango is not
+        return f"not written: WeasyPrint is not usable here ({type(exc).__name__})"
+    weasyprint.HTML(string=html_text).write_pdf(str(path))
+    return path.name
+
+
+def report_html(solved, summary: dict, folder: Path, rows, passed: bool) -> str:
+    case = solved.case
+    parts = [
+        f"<h1>Torque capacity check: {esc(case.name)}</h1>",
+        f'<p class="caution">Caution: {esc(summary["caution"])}</p>',
+        _job(case, summary), _results(summary), _margins(summary), _allowable(case, summary),
+        _pictures(folder, summary), _mesh_study(summary.get("mesh_study") or {}), _verification(rows, passed),
+        _inputs(case), _assumptions(), _provenance(summary),
+        f'<p class="caution">Caution: {esc(summary["caution"])}</p>',
+    ]
+    return page(f"clutchfe report: {case.name}", "\n".join(parts))
+
+
+def _job(case, s: dict) -> str:
+    kind = "cone clutch" if case.kind == "cone" else "plate clutch"
+    statement = (f"Where does the torque capacity of the {kind} <b>{esc(case.name)}</b> sit between the "
+                 f"uniform-pressure and uniform-wear hand predictions, once the elasticity of its bodies, lining "
+                 f"and support is taken into account, at an axial force of {num('axial_force_N', s['axial_force_N'], 1)} N "
+                 f"on {num('friction_surfaces', s['friction_surfaces'], 0)} friction surface(s)?")
+    out = ["<h2>Job</h2>", f"<p>{statement}</p>"]
+    if case.description:
+        out.append(f"<p><i>{esc(case.description)}</i></p>")
+    out.append(f'<p class="verdict">{esc(s["verdict"])}</p>')
+    for warning in s.get("warnings", []):
+        out.append(f'<p class="warn">Warning: {esc(warning)}</p>')
+    return "\n".join(out)
+
+
+def _results(s: dict) -> str:
+    rows = [
+        ["torque [N·m]", num("torque_fe_Nm", s["torque_fe_Nm"], 3),
+         num("torque_uniform_pressure_Nm", s["torque_uniform_pressure_Nm"], 3),
+         num("torque_uniform_wear_Nm", s["torque_uniform_wear_Nm"], 3)],
+        ["effective radius [mm]", num("effective_radius_mm", s["effective_radius_mm"], 3),
+         num("radius_uniform_pressure_mm", s["radius_uniform_pressure_mm"], 3),
+         num("radius_uniform_wear_mm", s["radius_uniform_wear_mm"], 3)],
+        ["position of the effective radius on [r1, r2] [%]",
+         num("effective_radius_position", s.get("effective_radius_position"), 2, 100),
+         num("radius_uniform_pressure_position", s.get("radius_uniform_pressure_position"), 2, 100),
+         num("radius_uniform_wear_position", s.get("radius_uniform_wear_position"), 2, 100)],
+        ["peak pressure [MPa]", num("peak_pressure_MPa", s["peak_pressure_MPa"], 4),
+         num("uniform_pressure_MPa", s.get("uniform_pressure_MPa"), 4),
+         num("peak_pressure_uniform_wear_MPa", s.get("peak_pressure_uniform_wear_MPa"), 4)],
+    ]
+    xi = s["capacity_position"]
+    loud = ' class="bad"' if xi < 0 else ""
+    return ("<h2>Capacity: FE contact against the hand formulas</h2>"
+            + table(["quantity", "FE", "uniform pressure", "uniform wear"], rows)
+            + f"<p{loud}>Capacity position ξ = {num('capacity_position', xi, 4)} [-] (1 = uniform pressure, "
+              "0 = uniform wear"
+            + ("; below 0: even the uniform-wear formula overestimates the capacity" if xi < 0 else "")
+            + f"). R_eff = {num('effective_radius_mm', s['effective_radius_mm'], 3)} mm on "
+              f"[{num('inner_radius_mm', s['inner_radius_mm'], 2)}, {num('outer_radius_mm', s['outer_radius_mm'], 2)}] mm. "
+              "The two hand torques differ by little for usual radius ratios, so ξ magnifies small shifts: "
+              "read it together with R_eff on the whole annulus.</p>"
+            + f"<p>Mean pressure {num('mean_pressure_MPa', s['mean_pressure_MPa'], 4)} MPa; contact over "
+              f"{num('contact_area_fraction', s['contact_area_fraction'], 2, 100)} % of the face; engagement force "
+              f"{num('engagement_force_N', s['engagement_force_N'], 1)} N; axial balance error "
+              f"{num('axial_force_balance_error', s['axial_force_balance_error'], 3, 100)} %.</p>")
+
+
+def _margins(s: dict) -> str:
+    if not s.get("required_torque_Nm"):
+        return ("<h2>Capacity margins</h2><p>No required torque given (<code>[requirement] required_torque</code>),"
+                " so no margins are computed.</p>")
+    need = s["required_torque_Nm"] * s["service_factor"]
+    rows = [[name, num(key, s[key], 2, 100, signed=True)] for name, key in (
+        ("FE contact", "capacity_margin_fe"), ("uniform pressure", "capacity_margin_uniform_pressure"),
+        ("uniform wear", "capacity_margin_uniform_wear"))]
+    short = [name for (name, key) in (("FE contact", "capacity_margin_fe"),
+                                      ("uniform pressure", "capacity_margin_uniform_pressure"),
+                                      ("uniform wear", "capacity_margin_uniform_wear")) if s[key] < 0]
+    note = (f'<p class="bad">Short of the requirement under: {esc(", ".join(short))}.</p>' if short else
+            "<p>Every assumption meets the requirement.</p>")
+    return ("<h2>Capacity margins</h2>"
+            f"<p>Required torque {num('required_torque_Nm', s['required_torque_Nm'], 2)} N·m × service factor "
+            f"{num('service_factor', s['service_factor'], 2)} = {esc(f'{need:.2f}')} N·m. "
+            "Margin = capacity / (required × service factor) − 1.</p>"
+            + table(["assumption", "capacity margin [%]"], rows) + note)
+
+
+def _allowable(case, s: dict) -> str:
+    allowable = case.lining.allowable_pressure
+    if not allowable:
+        return ("<h2>Peak pressure against the lining</h2><p>No allowable pressure given "
+                "(<code>[lining] allowable_pressure</code>); peak pressure "
+                f"{num('peak_pressure_MPa', s['peak_pressure_MPa'], 4)} MPa.</p>")
+    ratio = s["peak_pressure_over_allowable"]
+    verdict = ('<span class="bad">above the allowable pressure</span>' if ratio > 1 else "within the allowable pressure")
+    return ("<h2>Peak pressure against the lining</h2>"
+            f"<p>Peak {num('peak_pressure_MPa', s['peak_pressure_MPa'], 4)} MPa at r = "
+            f"{num('peak_pressure_radius_mm', s.get('peak_pressure_radius_mm'), 2)} mm against the lining's allowable "
+            f"{esc(f'{allowable:g}')} MPa: ratio {num('peak_pressure_over_allowable', ratio, 3)} [-], {verdict}. "
+            "A peak at a lining end is an edge concentration that grows with mesh refinement (see the mesh "
+            "study); the mean pressure "
+            f"{num('mean_pressure_MPa', s['mean_pressure_MPa'], 4)} MPa is the mesh-independent figure.</p>")
+
+
+def _pictures(folder: Path, s: dict) -> str:
+    mesh = s.get("mesh", {})
+    return "\n".join([
+        "<h2>Section, mesh and pressure</h2>",
+        picture(folder / "section.png", "meshed section with named faces",
+                f"Meshed (r, z) section with every named face: {num('mesh.triangles', mesh.get('triangles'), 0)} "
+                f"triangles, {num('mesh.nodes', mesh.get('nodes'), 0)} nodes, element order "
+                f"{num('mesh.element_order', mesh.get('element_order'), 0)}. Dimensions in mm."),
+        picture(folder / "pressure.png", "contact pressure against both hand curves",
+                "FE contact pressure [MPa] against radius [mm], with the uniform-pressure and uniform-wear "
+                "pressures at the same axial force."),
+        picture(folder / "effective_radius.png", "effective radius on the friction annulus",
+                f"FE effective radius {num('effective_radius_mm', s['effective_radius_mm'], 3)} mm and both hand "
+                f"radii on the bar [r1, r2]; ξ = {num('capacity_position', s['capacity_position'], 4)}."),
+        picture(folder / "deformed.png", "deformed section coloured by von Mises stress",
+                "Deformed section (displacements magnified), coloured by von Mises stress [MPa]."),
+    ])
+
+
+def _mesh_study(study: dict) -> str:
+    head = "<h2>Solution verification: mesh convergence</h2>"
+    if not study or "skipped" in study:
+        return head + f'<p class="warn">Mesh study not run: {esc(study.get("skipped", "not requested"))}.</p>'
+    mesh_rows = [[esc(m["name"]), num(f"mesh_study.meshes.{k}.face_spacing_mm", m["face_spacing_mm"], 4),
+                  num(f"mesh_study.meshes.{k}.interface_element_size_mm", m["interface_element_size_mm"], 4),
+                  num(f"mesh_study.meshes.{k}.lining_layers", m["lining_layers"], 0),
+                  num(f"mesh_study.meshes.{k}.triangles", m["triangles"], 0)] for k, m in enumerate(study["meshes"])]
+    rows = []
+    for key, q in study["quantities"].items():
+        p = f"mesh_study.quantities.{key}"
+        rows.append([esc(q["label"]), num(f"{p}.fine", q["fine"], 5), num(f"{p}.medium", q["medium"], 5),
+                     num(f"{p}.coarse", q["coarse"], 5), esc(q["behaviour"]),
+                     num(f"{p}.observed_order", q["observed_order"], 2) + (" (assumed 1)" if q["order_assumed"] else ""),
+                     num(f"{p}.extrapolated", q["extrapolated"], 5), num(f"{p}.gci_fine", q["gci_fine"], 4, 100),
+                     num(f"{p}.band_fine", q["band_fine"], 5), num(f"{p}.asymptotic_ratio", q["asymptotic_ratio"], 3)])
+    verdict_class = "verdict" if study["converged"] else "warn"
+    return (head
+            + f"<p>Three meshes with refinement ratio {num('mesh_study.refinement_ratio_nominal', study['refinement_ratio_nominal'], 2)} "
+              "on every mesh size; this run's mesh is the finest. Measured ratios of the mean node spacing along "
+              f"the friction faces: r21 = {num('mesh_study.refinement_ratio_21', study['refinement_ratio_21'], 3)}, "
+              f"r32 = {num('mesh_study.refinement_ratio_32', study['refinement_ratio_32'], 3)}; from the element "
+              f"counts: {num('mesh_study.element_count_ratio_21', study['element_count_ratio_21'], 3)}, "
+              f"{num('mesh_study.element_count_ratio_32', study['element_count_ratio_32'], 3)} (the bulk is held "
+              "back by the minimum elements through thin parts). Method: " + esc(study["source"]) + ".</p>"
+            + table(["mesh", "face node spacing [mm]", "interface element size [mm]", "lining layers", "triangles"],
+                    mesh_rows)
+            + table(["quantity", "fine (this run)", "medium", "coarse", "convergence", "observed order p",
+                     "Richardson extrapolation", "GCI fine [%]", "band ± [unit of quantity]",
+                     "asymptotic ratio (1 expected)"], rows)
+            + f'<p class="{verdict_class}">{esc(study["verdict"])}</p>'
+            + f"<p>{esc(study['peak_pressure_note'])}</p>"
+            + '<p class="small">GCI = 1.25 |f1 − f2| / (|f1| (r21^p − 1)), the fine-mesh index of Celik et al. '
+              "(2008); the asymptotic ratio GCI32 / (r21^p GCI21) is 1 in the asymptotic range (Roache 1998). "
+              "Where no order can be read, the index uses Roache's safety factor 3 with an assumed order 1.</p>")
+
+
+def _verification(rows, passed: bool) -> str:
+    from .verification.table import format_error, format_tolerance
+
+    body = [[esc(r.case), esc(r.quantity), sig(r.computed, 6), sig(r.reference, 6), esc(format_error(r)),
+             esc(format_tolerance(r)), esc(r.source), "pass" if r.passed else '<span class="bad">FAIL</span>']
+            for r in rows]
+    failed = sum(not r.passed for r in rows)
+    status = (f"<p>All {len(rows)} checks pass.</p>" if passed else
+              f'<p class="bad">{failed} of {len(rows)} checks FAIL: the solver does not meet its references '
+              "on this installation; do not rely on this report.</p>")
+    return ("<h2>Verification of the solver against closed forms</h2>"
+            "<p>The same suite as <code>clutchfe verify</code>, run on this installation.</p>"
+            + status + table(["case", "quantity", "computed", "reference", "error", "tolerance", "source", "result"],
+                             body, numeric_from=2))
+
+
+def _inputs(case) -> str:
+    from .schema import SCHEMA
+
+    rows = []
+    for key, value in case.flat().items():
+        table_name, _, leaf = key.rpartition(".")
+        spec = SCHEMA.get(table_name, {}).get(leaf)
+        unit = spec.unit if spec is not None else ""
+        rows.append([f"<code>{esc(key)}</code>", esc(f"{value:g}" if isinstance(value, float) else value), esc(unit)])
+    return ("<h2>Inputs (defaults filled in)</h2>"
+            + table(["key", "value", "unit"], rows, numeric_from=1))
+
+
+def _assumptions() -> str:
+    items = "".join(f"<li>{esc(a)}</li>" for a in ASSUMPTIONS)
+    return f"<h2>Assumptions and limits of the model</h2><ul>{items}</ul>"
+
+
+def _provenance(s: dict) -> str:
+    versions = ", ".join(f"{esc(k)} {esc(v)}" for k, v in s.get("versions", {}).items())
+    return ("<h2>Provenance</h2>"
+            f"<p>Input SHA-256: <code>{esc(s['input_sha256'])}</code><br>clutchfe {esc(s['version'])}; "
+            f"{versions}.<br>Degrees of freedom {num('dofs', s['dofs'], 0)}; solve "
+            f"{num('solve_seconds', s['solve_seconds'], 3)} s.</p>")

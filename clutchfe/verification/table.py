@@ -1,0 +1,127 @@
+"""The verification cases, run as one table: quantity, computed, reference, error, tolerance, source.
+
+A case is one entry of CASES: a title and a function returning its Check rows.  A new case
+(uniform-wear limit, harmonics against a 3D solve, ...) is one more entry here.
+"""
+from __future__ import annotations
+
+import csv
+import math
+import time
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Callable
+
+from .checks import Check
+from .contact import hertz_sphere_on_flat, rigid_flat_punch
+from .limits import linear_gap, load_linearity, thin_lining_limit
+from .solids import lame_cylinder
+
+
+@dataclass(frozen=True)
+class VerificationCase:
+    title: str
+    run: Callable[[], list[Check]]
+
+
+CASES: list[VerificationCase] = [
+    VerificationCase("Lamé thick cylinder", lame_cylinder),
+    VerificationCase("Hertz sphere on flat", hertz_sphere_on_flat),
+    VerificationCase("rigid flat punch", rigid_flat_punch),
+    VerificationCase("thin lining on rigid bodies (elastic-foundation limit)", thin_lining_limit),
+    VerificationCase("rigid-backed lining with a linear gap", linear_gap),
+    VerificationCase("linearity in force and friction coefficient", load_linearity),
+]
+
+_memo: dict[tuple, tuple] = {}
+
+
+def run_cases(cases: list[VerificationCase] | None = None) -> list[Check]:
+    """Every case's rows; a case that raises gives one failed row naming the error (never a crash)."""
+    rows: list[Check] = []
+    for case in (CASES if cases is None else cases):
+        try:
+            rows.extend(case.run())
+        except Exception as exc:  # noqa: BLE001 - a broken case is a failed verification, reported as such
+            rows.append(Check(case.title, f"case did not run: {type(exc).__name__}: {exc}", math.nan, math.nan,
+                              math.inf, "relative", 0.0, "—"))
+    return rows
+
+
+def run_verification(out_dir: str | Path | None = None) -> tuple[list[Check], bool]:
+    """Run the suite; with ``out_dir`` also write verification.json and verification.csv there."""
+    start = time.perf_counter()
+    rows = run_cases()
+    passed = bool(rows) and all(r.passed for r in rows)
+    _memo[_registry_key()] = (rows, passed)
+    if out_dir is not None:
+        write_table(Path(out_dir), rows, passed, time.perf_counter() - start)
+    return rows, passed
+
+
+def verification_rows() -> tuple[list[Check], bool]:
+    """The suite's rows, run once per process (reports of a study reuse them)."""
+    if _registry_key() not in _memo:
+        run_verification()
+    return _memo[_registry_key()]
+
+
+def _registry_key() -> tuple:
+    # a changed registry (a test's stand-in cases) must not hand its rows to a report
+    return tuple((c.title, c.run) for c in CASES)
+
+
+def write_table(folder: Path, rows: list[Check], passed: bool, seconds: float) -> None:
+    from ..results import versions, write_json
+
+    folder.mkdir(parents=True, exist_ok=True)
+    write_json(folder / "verification.json", {
+        "all_passed": passed, "seconds": round(seconds, 2), "versions": versions(),
+        "rows": [_json_row(r) for r in rows]})
+    with open(folder / "verification.csv", "w", newline="", encoding="utf-8") as fh:
+        out = csv.writer(fh)
+        out.writerow(["case", "quantity", "computed", "reference", "error", "error_kind", "tolerance", "source",
+                      "passed"])
+        for r in rows:
+            out.writerow([r.case, r.quantity, f"{r.computed:.10g}", f"{r.reference:.10g}", f"{r.error:.6g}",
+                          r.error_kind, f"{r.tolerance:.6g}", r.source, "pass" if r.passed else "FAIL"])
+
+
+def _json_row(r: Check) -> dict:
+    # JSON has no NaN or infinity: a case that did not run carries nulls
+    return {k: (v if not isinstance(v, float) or math.isfinite(v) else None) for k, v in r.as_dict().items()}
+
+
+def format_error(r: Check) -> str:
+    if not math.isfinite(r.error):
+        return "—"
+    return f"{100 * r.error:.3g} %" if r.error_kind == "relative" else f"{r.error:.3g}"
+
+
+def format_tolerance(r: Check) -> str:
+    return f"{100 * r.tolerance:.3g} %" if r.error_kind == "relative" else f"{r.tolerance:.3g}"
+
+
+def print_verification(rows: list[Check], passed: bool, console=None) -> None:
+    """The table on the terminal, one row per check, and a closing line."""
+    from rich.console import Console
+    from rich.markup import escape
+    from rich.table import Table
+
+    console = console or Console(highlight=False)
+    table = Table(title="clutchfe verification: FE results against closed forms")
+    for name, justify in (("quantity", "left"), ("computed", "right"), ("reference", "right"), ("error", "right"),
+                          ("tolerance", "right"), ("source", "left"), ("result", "left")):
+        table.add_column(name, justify=justify, overflow="fold")
+    case = None
+    for r in rows:
+        if r.case != case:
+            case = r.case
+            table.add_row(escape(case), style="bold", end_section=False)
+        cells = ("  " + r.quantity, f"{r.computed:.6g}", f"{r.reference:.6g}", format_error(r), format_tolerance(r),
+                 r.source, "pass" if r.passed else "FAIL")
+        table.add_row(*(escape(c) for c in cells), style=None if r.passed else "bold red")
+    console.print(table)
+    failed = sum(not r.passed for r in rows)
+    console.print(f"{len(rows) - failed} passed, {failed} failed" if rows else "no verification rows ran",
+                  markup=False, style=None if passed else "bold red")

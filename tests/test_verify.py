@@ -1,0 +1,91 @@
+"""The verification suite behind `clutchfe verify`: every case passes, every row names its source,
+and a wrong or broken case fails the suite instead of passing or crashing it."""
+import io
+import json
+
+import pytest
+from rich.console import Console
+
+from clutchfe.verification import CASES, Check, VerificationCase, print_verification, run_verification
+from clutchfe.verification import table as vtable
+from clutchfe.verification.checks import relative
+from clutchfe.verification.mesh_study import coarser_case
+
+
+@pytest.fixture(scope="module")
+def suite(tmp_path_factory):
+    out = tmp_path_factory.mktemp("verify")
+    rows, passed = run_verification(out_dir=out)
+    return rows, passed, out
+
+
+def test_every_case_passes_with_a_named_source(suite):
+    rows, passed, _ = suite
+    failed = [(r.case, r.quantity, r.error, r.tolerance) for r in rows if not r.passed]
+    assert passed and not failed, failed
+    covered = {r.case for r in rows}
+    for name in ("Lamé", "Hertz", "flat punch", "thin lining", "angle mismatch", "full contact"):
+        assert any(name in case for case in covered), name
+    for r in rows:
+        assert len(r.source) > 5 and r.source != "—", r
+        assert "[" in r.quantity and r.quantity.endswith("]"), r.quantity          # unit in every label
+    assert len(rows) >= 15
+
+
+def test_table_files_match_the_rows(suite):
+    rows, passed, out = suite
+    data = json.loads((out / "verification.json").read_text())
+    assert data["all_passed"] is passed and len(data["rows"]) == len(rows)
+    assert data["rows"][0]["computed"] == rows[0].computed
+    csv_lines = (out / "verification.csv").read_text().splitlines()
+    assert len(csv_lines) == len(rows) + 1 and csv_lines[0].startswith("case,quantity,computed")
+
+
+def test_printer_shows_every_row_and_the_count(suite):
+    rows, passed, _ = suite
+    buf = io.StringIO()
+    print_verification(rows, passed, Console(file=buf, width=250))
+    text = buf.getvalue()
+    assert f"{len(rows)} passed, 0 failed" in text
+    assert text.count(" pass ") >= len(rows) - 1 and "Johnson" in text and "Timoshenko" in text
+
+
+def _wrong_reference():
+    # a deliberately wrong reference: 2 + 2 against 5 must fail at 1 %
+    return [relative("arithmetic", "sum [-]", 2 + 2, 5, 0.01, "arithmetic")]
+
+
+def _broken_case():
+    raise RuntimeError("mesh file missing")
+
+
+def test_a_wrong_or_broken_case_fails_the_suite(monkeypatch, tmp_path):
+    monkeypatch.setattr(vtable, "CASES", [VerificationCase("wrong", _wrong_reference),
+                                          VerificationCase("broken", _broken_case)])
+    rows, passed = run_verification(out_dir=tmp_path)
+    assert passed is False and [r.passed for r in rows] == [False, False]
+    assert "RuntimeError: mesh file missing" in rows[1].quantity
+    data = json.loads((tmp_path / "verification.json").read_text())       # no NaN reaches JSON
+    assert data["rows"][1]["error"] is None and data["all_passed"] is False
+    buf = io.StringIO()
+    print_verification(rows, passed, Console(file=buf, width=250))
+    assert "FAIL" in buf.getvalue() and "0 passed, 2 failed" in buf.getvalue()
+    assert not Check("c", "q [-]", 1.0, 1.0, float("nan"), "relative", 1.0, "s").passed
+
+
+def test_one_registry_entry_adds_a_case():
+    # the registry is the single place a new case goes (uniform-wear limit, harmonics vs 3D, ...)
+    assert all(isinstance(c, VerificationCase) and callable(c.run) for c in CASES)
+    assert len({c.title for c in CASES}) == len(CASES)
+
+
+def test_coarser_meshes_scale_every_size():
+    from clutchfe.case import case_from_dict
+    from conftest import CONE
+
+    case = case_from_dict(CONE)
+    coarse = coarser_case(case, 1.5 ** 2)
+    for key in ("interface_element_size", "edge_element_size", "element_size"):
+        assert getattr(coarse.mesh, key) == pytest.approx(2.25 * getattr(case.mesh, key))
+    assert coarse.mesh.lining_layers == max(1, round(case.mesh.lining_layers / 2.25))
+    assert coarse.interface == case.interface and coarse.input_sha256 == case.input_sha256
