@@ -34,6 +34,11 @@ def _parser() -> argparse.ArgumentParser:
     r.add_argument("case", type=Path)
     r.add_argument("--out", type=Path, help="output folder (default results/<case name>)")
     sub.add_parser("keys", help="print the case-file reference")
+    s = sub.add_parser("study", help="parameter sweep or tolerance Monte Carlo over case keys")
+    s.add_argument("study", type=Path)
+    s.add_argument("--workers", type=int, help="local worker processes (default: sized to the machine)")
+    s.add_argument("--scheduler", help="address of a running dask scheduler, e.g. tcp://host:8786")
+    s.add_argument("--out", type=Path, help="output folder (default results/<study name>)")
     v = sub.add_parser("verify", help="run the solver's verification suite against published closed forms")
     v.add_argument("--out", type=Path, help="also write verification.json and verification.csv here")
     return p
@@ -52,7 +57,11 @@ def main(argv: list[str] | None = None) -> int:
             err.print(f"clutchfe: error: {problem}", markup=False)
         return EXIT_INPUT
     except KeyboardInterrupt:
-        err.print("clutchfe: interrupted; nothing was written", markup=False)
+        if getattr(args, "command", "") == "study":
+            err.print("clutchfe: interrupted; finished samples are kept: run the same command again to "
+                      "continue", markup=False)
+        else:
+            err.print("clutchfe: interrupted; nothing was written", markup=False)
         return 130
     except Exception as exc:  # noqa: BLE001 - the last line of defence: no traceback for users
         from .pipeline import PhysicsError
@@ -70,6 +79,10 @@ def _dispatch(args) -> int:
     if args.command == "keys":
         from .schema import reference_markdown
         out.print(reference_markdown(), markup=False)
+        return EXIT_OK
+    if args.command == "study":
+        from .study import run_study
+        run_study(args.study, workers=args.workers, scheduler=args.scheduler, console=out, out=args.out)
         return EXIT_OK
     if args.command == "verify":
         from .verification import print_verification, run_verification

@@ -83,7 +83,8 @@ def fe_model_of(case: Case, section, mesh):
     contacts = []
     for itf in section.interfaces:
         pairs = mesh.interface_pairs[itf.name]
-        along = np.linalg.norm(mesh.points[pairs[:, 0]] - np.asarray(itf.start), axis=1) / itf.slant_length
+        along = np.clip(np.linalg.norm(mesh.points[pairs[:, 0]] - np.asarray(itf.start), axis=1)
+                        / itf.slant_length, 0.0, 1.0)      # round-off must not make a gap negative
         gap = itf.gap_start + (itf.gap_end - itf.gap_start) * along
         contacts.append(ContactPair(itf.name, itf.face_a, itf.face_b, itf.normal_a, pairs.T.copy(), gap))
     return FeModel(

@@ -44,19 +44,26 @@ class LcpSolution:
     method: str
 
 
-def _kkt(C, g, B, e, S):
+def _kkt(C, g, B, e, S, consistent=False):
     """Equality-constrained subproblem on the closed set S; None if the
-    balance equations cannot be met with S (a free body has no closed node)."""
+    balance equations cannot be met with S (a free body has no closed node).
+
+    ``consistent=True``: the caller knows the balance holds on S (the primal
+    active set keeps it along its path), so a free body without a closed node
+    is unloaded and its translation is taken as the least-norm one.
+    """
     s = np.flatnonzero(S)
     nb = B.shape[1]
     Bs = B[s]
-    if nb and np.linalg.matrix_rank(Bs) < nb:
+    deficient = nb and np.linalg.matrix_rank(Bs) < nb
+    if deficient and not consistent:
         return None
     M = np.zeros((s.size + nb, s.size + nb))
     M[:s.size, :s.size] = C[np.ix_(s, s)]
     M[:s.size, s.size:] = Bs
     M[s.size:, :s.size] = Bs.T
-    y = np.linalg.solve(M, np.concatenate([-g[s], -e]))
+    rhs = np.concatenate([-g[s], -e])
+    y = np.linalg.lstsq(M, rhs, rcond=None)[0] if deficient else np.linalg.solve(M, rhs)
     lam = np.zeros(g.size)
     lam[s] = y[:s.size]
     return lam, y[s.size:]
@@ -117,7 +124,7 @@ def primal_active_set(C, g, B, e, max_iter=None):
             F[i] = True
     max_iter = max_iter or 10 * n + 50
     for it in range(1, max_iter + 1):
-        y, delta = _kkt(C, g, B, e, F)
+        y, delta = _kkt(C, g, B, e, F, consistent=True)
         p = np.where(F, y - lam, 0.0)
         tol_g, tol_f = _scales(C, g, B, e, np.abs(lam) + np.abs(y))
         if np.abs(p).max(initial=0.0) <= tol_f:

@@ -9,7 +9,7 @@ import numpy as np
 import scipy.sparse as sp
 from scipy.sparse.linalg import splu
 from skfem import Basis, asm
-from threadpoolctl import threadpool_limits
+from ._threads import one_blas_thread
 
 from .assembly import System, assemble, axial_dofs_of_body
 from .condense import condense
@@ -103,7 +103,7 @@ def linear_solve(model: FeModel) -> tuple[np.ndarray, dict]:
     bodies pinned), as the timing yardstick for :func:`solve`."""
     timings = {}
     t0 = time.perf_counter()
-    with threadpool_limits(limits=1):
+    with one_blas_thread():
         with _clock(timings, "assembly"):
             system = assemble(model)
         prep = Prepared(system, timings)
@@ -127,7 +127,7 @@ class ContactSolver:
         self.timings: dict[str, float] = {}
         t0 = time.perf_counter()
         timings = self.timings
-        with threadpool_limits(limits=1):
+        with one_blas_thread():
             with _clock(timings, "assembly"):
                 self.system = system = assemble(model)
                 self.faces = faces = [pair_face(system, p) for p in model.contacts]
@@ -181,7 +181,7 @@ class ContactSolver:
         if g0.shape != self.g0.shape or not np.all(np.isfinite(g0)):
             raise ValueError("one finite gap per interface node expected")
         e = load_scale * self.e
-        with threadpool_limits(limits=1):
+        with one_blas_thread():
             with _clock(timings, "contact"):
                 g = g0 + load_scale * self.g_load
                 sol = solve_lcp(self.C, g, self.B, e) if g.size else LcpSolution(

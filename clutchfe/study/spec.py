@@ -1,0 +1,375 @@
+"""Read a study file (TOML) into a validated :class:`Study`.
+
+A study names a base case and the case keys to vary, as grids (a sweep) or as
+distributions (tolerances).  Every problem is collected, one line each with the
+key, the value and what is allowed; :class:`clutchfe.case.CaseError` carries them.
+"""
+from __future__ import annotations
+
+import difflib
+import hashlib
+import math
+import tomllib
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from ..case import Case, CaseError, load_case
+from ..schema import SCHEMA, Key, describe_range
+
+DISTRIBUTIONS = {                       # distribution -> its parameters
+    "uniform": ("low", "high"),
+    "normal": ("mean", "std_dev"),
+    "truncated_normal": ("mean", "std_dev", "low", "high"),
+    "lognormal": ("mean", "std_dev"),
+}
+GRID_KEYS = ("values", "start", "stop", "steps", "spacing")
+METHODS = ("monte_carlo", "latin_hypercube")
+CRITERIA = ("required_torque", "allowable_pressure")
+# Outputs every sample records; statistics are always given for the first three.
+OUTPUTS = {
+    "torque_fe_Nm": "FE torque capacity",
+    "capacity_position": "xi: 1 = uniform pressure, 0 = uniform wear",
+    "peak_pressure_MPa": "peak contact pressure",
+    "effective_radius_mm": "FE effective radius",
+    "torque_uniform_pressure_Nm": "hand torque, uniform pressure",
+    "torque_uniform_wear_Nm": "hand torque, uniform wear",
+    "contact_area_fraction": "share of the friction face in contact",
+    "capacity_margin_fe": "FE capacity over required torque x service factor, minus 1",
+    "design_torque_Nm": "required torque x service factor",
+    "peak_pressure_over_allowable": "peak pressure / lining allowable pressure",
+    "engagement_force_N": "axial force to push the cone home",
+}
+CORE_OUTPUTS = ("torque_fe_Nm", "capacity_position", "peak_pressure_MPa", "effective_radius_mm")
+# Not solvable by the axisymmetric model yet (pipeline.solved_case refuses them); drop from
+# this list when the non-axisymmetric solve lands.
+NOT_YET = ("misalignment.axis_tilt", "misalignment.radial_offset")
+TOP_KEYS = ("name", "description", "base_case", "method", "samples", "seed", "outputs", "vary", "limit")
+MAX_SAMPLES = 1_000_000
+
+
+@dataclass(frozen=True)
+class Grid:
+    key: str
+    values: tuple
+
+
+@dataclass(frozen=True)
+class Distribution:
+    key: str
+    kind: str                          # one of DISTRIBUTIONS
+    params: dict
+
+
+@dataclass(frozen=True)
+class Limit:
+    key: str
+    low: float
+    high: float
+    criterion: str
+    steps: int = 9                     # scan points before bisection
+
+
+@dataclass(frozen=True)
+class Study:
+    name: str
+    description: str
+    source: Path
+    base_case: Case
+    base_data: dict                    # the base case file as read (overrides go on top)
+    grids: tuple[Grid, ...]
+    distributions: tuple[Distribution, ...]
+    method: str
+    samples: int                       # draws per grid point (1 for a pure sweep)
+    seed: int
+    outputs: tuple[str, ...]
+    limit: Limit | None
+    input_sha256: str = ""
+    warnings: tuple = field(default=())
+
+    @property
+    def varied_keys(self) -> list[str]:
+        return [g.key for g in self.grids] + [d.key for d in self.distributions]
+
+    @property
+    def grid_points(self) -> int:
+        return math.prod(len(g.values) for g in self.grids)
+
+    @property
+    def planned(self) -> int:
+        return self.grid_points * self.samples
+
+
+def load_study(path: str | Path) -> Study:
+    path = Path(path)
+    try:
+        raw = path.read_bytes()
+        data = tomllib.loads(raw.decode("utf-8"))
+    except OSError as exc:
+        raise CaseError([f"{path}: cannot read the study file ({exc.strerror})"]) from None
+    except (UnicodeDecodeError, tomllib.TOMLDecodeError) as exc:
+        raise CaseError([f"{path}: not a valid TOML study file: {exc}"]) from None
+    return study_from_dict(data, path, hashlib.sha256(raw).hexdigest())
+
+
+def study_from_dict(data: dict, path: Path, sha256: str = "") -> Study:
+    problems: list[str] = []
+    for key in data:
+        if key not in TOP_KEYS:
+            problems.append(f"{key}: unknown study key{_hint(key, TOP_KEYS)}; allowed: {', '.join(TOP_KEYS)}")
+    base_case, base_data = _base_case(data, path, problems)
+    grids, dists = [], []
+    entries = data.get("vary", [])
+    if not isinstance(entries, list) or not entries or not all(isinstance(e, dict) for e in entries):
+        problems.append("vary: give at least one [[vary]] table with key = \"table.key\" and either values/"
+                        "start-stop-steps (a sweep) or distribution = " + " | ".join(DISTRIBUTIONS))
+        entries = []
+    seen = set()
+    for k, entry in enumerate(entries):
+        item = _vary(entry, k, base_case, problems)
+        if item is None:
+            continue
+        if item.key in seen:
+            problems.append(f"vary[{k}].key = {item.key!r}: varied twice; allowed: each key once")
+        seen.add(item.key)
+        (grids if isinstance(item, Grid) else dists).append(item)
+    method, samples, seed = _sampling(data, any("distribution" in e for e in entries), problems)
+    outputs = _outputs(data, problems)
+    limit = _limit(data.get("limit"), base_case, problems) if "limit" in data else None
+    name = data.get("name", path.name.removesuffix(".toml").removesuffix(".study"))
+    if not isinstance(name, str) or not name.strip() or any(c in name for c in "/\\"):
+        problems.append(f"name = {name!r}: must be a plain text name (used for the results folder)")
+    grid_points = math.prod(len(g.values) for g in grids) if grids else 1
+    if grid_points * samples > MAX_SAMPLES:
+        problems.append(f"samples: the plan has {grid_points * samples} samples; allowed: at most {MAX_SAMPLES}")
+    if problems:
+        raise CaseError(problems)
+    return Study(name=name, description=str(data.get("description", "")), source=path, base_case=base_case,
+                 base_data=base_data, grids=tuple(grids), distributions=tuple(dists), method=method,
+                 samples=samples, seed=seed, outputs=outputs, limit=limit, input_sha256=sha256)
+
+
+def _hint(word: str, options) -> str:
+    close = difflib.get_close_matches(str(word), list(options), n=1, cutoff=0.6)
+    return f" (did you mean {close[0]}?)" if close else ""
+
+
+def _base_case(data: dict, path: Path, problems: list[str]):
+    ref = data.get("base_case")
+    if not isinstance(ref, str):
+        problems.append(f"base_case = {ref!r}: required; the case file to vary, relative to the study file")
+        return None, {}
+    case_path = (path.parent / ref) if not Path(ref).is_absolute() else Path(ref)
+    try:
+        case = load_case(case_path)
+    except CaseError as exc:
+        problems.extend(f"base_case {ref}: {p}" for p in exc.problems)
+        return None, {}
+    with open(case_path, "rb") as fh:
+        return case, tomllib.load(fh)
+
+
+def case_key(full: str) -> Key | None:
+    table, _, key = full.rpartition(".")
+    return SCHEMA.get(table, {}).get(key) if table else None
+
+
+def _vary(entry: dict, k: int, base: Case | None, problems: list[str]):
+    where = f"vary[{k}]"
+    full = entry.get("key")
+    spec = case_key(full) if isinstance(full, str) else None
+    if spec is None:
+        options = [f"{t}.{n}" for t in SCHEMA if t for n in SCHEMA[t]]
+        problems.append(f"{where}.key = {full!r}: not a case key{_hint(full, options)}; allowed: a numeric "
+                        "case key such as interface.friction_coefficient (see `clutchfe keys`)")
+        return None
+    if spec.kind not in (int, float) or spec.choices:
+        problems.append(f"{where}.key = {full!r}: only numeric keys can be varied; this one is "
+                        f"{describe_range(spec)}")
+        return None
+    if base is not None and base.kind not in spec.kinds:
+        problems.append(f"{where}.key = {full!r}: belongs to {' or '.join(spec.kinds)} cases; the base case is "
+                        f"kind = {base.kind!r}")
+        return None
+    if full in NOT_YET:
+        problems.append(f"{where}.key = {full!r}: needs the non-axisymmetric solve, not in this version")
+        return None
+    if full.endswith("_stiffness") and base is not None and base.support.type != "springs":
+        problems.append(f"{where}.key = {full!r}: the base case's support.type = {base.support.type!r} ignores it; "
+                        "allowed: set support.type = 'springs' in the base case")
+        return None
+    allowed = {"key", "distribution", *GRID_KEYS, *{p for ps in DISTRIBUTIONS.values() for p in ps}}
+    for extra in sorted(set(entry) - allowed):
+        problems.append(f"{where}.{extra}: unknown{_hint(extra, allowed)}; allowed: key, values | start, stop, "
+                        "steps, spacing | distribution with its parameters")
+    if "distribution" in entry:
+        return _distribution(entry, where, full, spec, problems)
+    return _grid(entry, where, full, spec, problems)
+
+
+def _number(entry: dict, name: str, where: str, problems: list[str]) -> float | None:
+    value = entry.get(name)
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
+        problems.append(f"{where}.{name} = {value!r}: must be a finite number")
+        return None
+    return float(value)
+
+
+def _inside(value: float, spec: Key) -> bool:
+    low_ok = spec.low is None or value > spec.low or (spec.low_inclusive and value == spec.low)
+    high_ok = spec.high is None or value < spec.high or (spec.high_inclusive and value == spec.high)
+    return low_ok and high_ok
+
+
+def _grid(entry: dict, where: str, full: str, spec: Key, problems: list[str]) -> Grid | None:
+    if "values" in entry:
+        values = entry["values"]
+        if not isinstance(values, list) or not values:
+            problems.append(f"{where}.values = {values!r}: must be a non-empty list of numbers")
+            return None
+        nums = [_number({"v": v}, "v", f"{where}.values", problems) for v in values]
+        if None in nums:
+            return None
+    else:
+        start, stop = _number(entry, "start", where, problems), _number(entry, "stop", where, problems)
+        steps, spacing = entry.get("steps"), entry.get("spacing", "linear")
+        if not isinstance(steps, int) or isinstance(steps, bool) or not 2 <= steps <= 10000:
+            problems.append(f"{where}.steps = {steps!r}: allowed: a whole number 2 ≤ steps ≤ 10000")
+            return None
+        if spacing not in ("linear", "log"):
+            problems.append(f"{where}.spacing = {spacing!r}: allowed: 'linear' or 'log'")
+            return None
+        if start is None or stop is None:
+            return None
+        if spacing == "log" and (start <= 0 or stop <= 0):
+            problems.append(f"{where}: log spacing needs start > 0 and stop > 0 (start = {start:g}, stop = {stop:g})")
+            return None
+        nums = _spaced(start, stop, steps, spacing)
+    if spec.kind is int:
+        if any(v != int(v) for v in nums):
+            problems.append(f"{where}.values: {full} takes whole numbers; allowed: {describe_range(spec)}")
+            return None
+        nums = [int(v) for v in nums]
+    bad = [v for v in nums if not _inside(v, spec)]
+    if bad:
+        problems.append(f"{where}.values: {full} = {bad[0]:g} out of range; allowed: {describe_range(spec)}")
+        return None
+    return Grid(full, tuple(nums))
+
+
+def _spaced(start: float, stop: float, steps: int, spacing: str) -> list[float]:
+    import numpy as np
+    if spacing == "log":
+        return [float(v) for v in np.geomspace(start, stop, steps)]
+    return [float(v) for v in np.linspace(start, stop, steps)]
+
+
+def _distribution(entry: dict, where: str, full: str, spec: Key, problems: list[str]) -> Distribution | None:
+    kind = entry["distribution"]
+    if kind not in DISTRIBUTIONS:
+        problems.append(f"{where}.distribution = {kind!r}: not known{_hint(kind, DISTRIBUTIONS)}; allowed: "
+                        + ", ".join(DISTRIBUTIONS))
+        return None
+    if spec.kind is int:
+        problems.append(f"{where}.key = {full!r}: takes whole numbers; vary it as a sweep (values = [...])")
+        return None
+    names = DISTRIBUTIONS[kind]
+    for extra in sorted(set(entry) & (set(GRID_KEYS) | {p for ps in DISTRIBUTIONS.values() for p in ps})
+                        - set(names)):
+        problems.append(f"{where}.{extra}: not a parameter of a {kind} distribution; allowed: {', '.join(names)}")
+    params = {n: _number(entry, n, where, problems) for n in names}
+    if None in params.values():
+        return None
+    if "std_dev" in params and params["std_dev"] <= 0:
+        problems.append(f"{where}.std_dev = {params['std_dev']:g}: allowed: value > 0")
+        return None
+    if "low" in params and not params["low"] < params["high"]:
+        problems.append(f"{where}.low = {params['low']:g}: must be below high = {params['high']:g}")
+        return None
+    if kind == "truncated_normal" and not params["low"] <= params["mean"] <= params["high"]:
+        problems.append(f"{where}.mean = {params['mean']:g}: allowed: low ≤ mean ≤ high "
+                        f"({params['low']:g} … {params['high']:g})")
+        return None
+    if kind == "lognormal" and params["mean"] <= 0:
+        problems.append(f"{where}.mean = {params['mean']:g}: a lognormal quantity is positive; allowed: value > 0")
+        return None
+    for bound in ("low", "high"):
+        if bound in params and not _inside(params[bound], spec):
+            problems.append(f"{where}.{bound} = {params[bound]:g}: outside the range of {full}; allowed: "
+                            f"{describe_range(spec)}")
+            return None
+    return Distribution(full, kind, params)
+
+
+def _sampling(data: dict, has_dists: bool, problems: list[str]) -> tuple[str, int, int]:
+    method = data.get("method", "latin_hypercube")
+    if method not in METHODS:
+        problems.append(f"method = {method!r}: allowed: {', '.join(METHODS)}{_hint(method, METHODS)}")
+    seed = data.get("seed", 0)
+    if not isinstance(seed, int) or isinstance(seed, bool) or not 0 <= seed < 2**63:
+        problems.append(f"seed = {seed!r}: allowed: a whole number 0 ≤ seed < 2^63")
+        seed = 0
+    if not has_dists:
+        if "samples" in data:
+            problems.append(f"samples = {data['samples']!r}: only used with distributions; a sweep solves each "
+                            "grid point once")
+        return method, 1, seed
+    samples = data.get("samples")
+    if not isinstance(samples, int) or isinstance(samples, bool) or not 2 <= samples <= MAX_SAMPLES:
+        problems.append(f"samples = {samples!r}: required with distributions; allowed: a whole number "
+                        f"2 ≤ samples ≤ {MAX_SAMPLES} (per grid point)")
+        samples = 2
+    return method, samples, seed
+
+
+def _outputs(data: dict, problems: list[str]) -> tuple[str, ...]:
+    chosen = data.get("outputs", [])
+    if not isinstance(chosen, list):
+        problems.append(f"outputs = {chosen!r}: must be a list of output names; allowed: {', '.join(OUTPUTS)}")
+        return CORE_OUTPUTS
+    for name in chosen:
+        if name not in OUTPUTS:
+            problems.append(f"outputs: {name!r} is not an output{_hint(name, OUTPUTS)}; allowed: "
+                            + ", ".join(OUTPUTS))
+    return CORE_OUTPUTS + tuple(n for n in OUTPUTS if n in chosen and n not in CORE_OUTPUTS)
+
+
+def _limit(entry, base: Case | None, problems: list[str]) -> Limit | None:
+    if not isinstance(entry, dict):
+        problems.append("[limit]: must be a table with key, low, high and criterion")
+        return None
+    for extra in sorted(set(entry) - {"key", "low", "high", "criterion", "steps"}):
+        problems.append(f"limit.{extra}: unknown; allowed: key, low, high, criterion, steps")
+    full = entry.get("key")
+    spec = case_key(full) if isinstance(full, str) else None
+    ignored = full.endswith("_stiffness") and base is not None and base.support.type != "springs" \
+        if isinstance(full, str) else False
+    if spec is None or spec.kind is not float or (base is not None and base.kind not in spec.kinds) \
+            or full in NOT_YET or ignored:
+        problems.append(f"limit.key = {full!r}: allowed: a numeric case key of this case kind, e.g. "
+                        "misalignment.cone_angle_mismatch, misalignment.coning, support.axial_stiffness")
+        return None
+    low, high = _number(entry, "low", "limit", problems), _number(entry, "high", "limit", problems)
+    criterion = entry.get("criterion", "required_torque")
+    steps = entry.get("steps", 9)
+    if criterion not in CRITERIA:
+        problems.append(f"limit.criterion = {criterion!r}: allowed: {', '.join(CRITERIA)}")
+        return None
+    if not isinstance(steps, int) or isinstance(steps, bool) or not 2 <= steps <= 200:
+        problems.append(f"limit.steps = {steps!r}: allowed: a whole number 2 ≤ steps ≤ 200")
+        return None
+    if low is None or high is None:
+        return None
+    if not low < high:
+        problems.append(f"limit.low = {low:g}: must be below limit.high = {high:g}")
+        return None
+    for name, value in (("low", low), ("high", high)):
+        if not _inside(value, spec):
+            problems.append(f"limit.{name} = {value:g}: outside the range of {full}; allowed: {describe_range(spec)}")
+            return None
+    if base is not None:
+        need = ("requirement.required_torque" if criterion == "required_torque" else "lining.allowable_pressure")
+        table, _, key = need.partition(".")
+        if getattr(getattr(base, table), key) is None:
+            problems.append(f"limit.criterion = {criterion!r}: the base case gives no {need}; set it there")
+            return None
+    return Limit(full, low, high, criterion, steps)

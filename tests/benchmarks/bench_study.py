@@ -1,0 +1,62 @@
+"""Study throughput (design.md §8; issue: 1000 misalignment/load samples on one geometry in under a
+minute on 2 cores, and >= 1.7x from 1 to 2 workers on a study that varies stiffness).
+
+Prints figures measured in this run, no asserts:  ``python tests/benchmarks/bench_study.py``.
+Times are wall clock of run_study, cluster start-up included (printed separately as the
+time of an empty study, so the solve share can be read off).
+"""
+import os
+import tempfile
+import time
+from pathlib import Path
+
+import tomli_w
+from rich.console import Console
+
+from clutchfe.study import run_study
+
+CASES = Path(__file__).resolve().parents[2] / "cases"
+QUIET = Console(file=open(os.devnull, "w"))
+
+
+def study_file(folder: Path, name: str, body: dict) -> Path:
+    path = folder / f"{name}.study.toml"
+    path.write_text(tomli_w.dumps({"name": name, "base_case": str(CASES / "cone_capstan.toml"), **body}))
+    return path
+
+
+MONTE_CARLO = {"samples": 1000, "seed": 1, "vary": [
+    {"key": "interface.friction_coefficient", "distribution": "normal", "mean": 0.25, "std_dev": 0.02},
+    {"key": "load.axial_force", "distribution": "normal", "mean": 1800.0, "std_dev": 45.0},
+    {"key": "misalignment.cone_angle_mismatch", "distribution": "uniform", "low": -0.1, "high": 0.1}]}
+# the capstan base case has a rigid housing: vary the cup's modulus instead (one factorisation each)
+STIFFNESS = {"vary": [{"key": "cup.youngs_modulus", "start": 8.0e4, "stop": 1.6e5, "steps": 16}]}
+EMPTY_ISH = {"vary": [{"key": "interface.friction_coefficient", "values": [0.25]}]}
+
+
+def timed(path: Path, out: Path, workers: int) -> tuple[float, dict]:
+    t = time.perf_counter()
+    summary = run_study(path, workers=workers, console=QUIET, out=out)
+    return time.perf_counter() - t, summary
+
+
+def main() -> None:
+    with tempfile.TemporaryDirectory() as tmp:
+        tmp = Path(tmp)
+        base_t, _ = timed(study_file(tmp, "one", EMPTY_ISH), tmp / "one", 2)
+        print(f"one-sample study, 2 workers (cluster start, mesh, one factorisation): {base_t:.1f} s")
+        mc_t, mc = timed(study_file(tmp, "mc", MONTE_CARLO), tmp / "mc", 2)
+        print(f"1000-sample misalignment/load Monte Carlo, one geometry, 2 workers: {mc_t:.1f} s wall "
+              f"({1000 / mc_t:.0f} samples/s; {mc['samples_done']} done, {mc['samples_failed']} failed; "
+              f"solver groups {mc['run']['solver_groups']}; target < 60 s)")
+        path = study_file(tmp, "stiff", STIFFNESS)
+        t1, s1 = timed(path, tmp / "stiff1", 1)
+        t2, s2 = timed(path, tmp / "stiff2", 2)
+        print(f"16-stiffness study: 1 worker {t1:.1f} s, 2 workers {t2:.1f} s -> speed-up {t1 / t2:.2f}x "
+              f"(target >= 1.7x); without the start-up of one-sample study: "
+              f"{(t1 - base_t) / max(t2 - base_t, 1e-9):.2f}x")
+        assert s1["samples_done"] == s2["samples_done"] == 16
+
+
+if __name__ == "__main__":
+    main()
