@@ -106,12 +106,12 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
     _fill_defaults(values, kind, problems)   # unknown keys are left out, the rest is still checked
     if len(problems) > unknown:
         raise CaseError(problems)
-    warnings = _cross_checks(values, kind, problems)
+    given = frozenset(k for k, v in data.items() if isinstance(v, dict))
+    warnings = _cross_checks(values, kind, problems, given)
     if problems:
         raise CaseError(problems)
     name = values.get("name") or default_name
     tables = {t: cls(**{k: values.get(f"{t}.{k}") for k in SCHEMA[t]}) for t, cls in _TABLE_CLASSES.items()}
-    given = frozenset(k for k, v in data.items() if isinstance(v, dict))
     return Case(kind=kind, name=name, description=values.get("description") or "", input_sha256=sha256,
                 source=source, warnings=tuple(warnings), tables_given=given, **tables)
 
@@ -237,7 +237,7 @@ def _fill_defaults(values: dict, kind: str, problems: list[str]) -> None:
         problems.append("interface.semi_cone_angle: missing; required for a cone (0 < value < 90 deg)")
 
 
-def _cross_checks(v: dict, kind: str, problems: list[str]) -> list[str]:
+def _cross_checks(v: dict, kind: str, problems: list[str], given: frozenset = frozenset()) -> list[str]:
     """Checks that relate several keys.  Returns warnings; appends errors."""
     warnings: list[str] = []
     r1, r2 = v["interface.inner_radius"], v["interface.outer_radius"]
@@ -310,8 +310,12 @@ def _cross_checks(v: dict, kind: str, problems: list[str]) -> list[str]:
                             f"allowed: -{t:g} < coning < {t:g} mm")
     _check_load(v, kind, problems)
     _check_support(v, problems)
-    if "wear.wear_coefficient" in v:
+    if "wear" in given:
         _check_wear(v, problems)
+        for key in ("misalignment.axis_tilt", "misalignment.radial_offset"):
+            if v[key]:
+                problems.append(f"{key} = {v[key]:g}: wear-in runs on the axisymmetric face in this version; "
+                                "remove [wear] or set it to 0")
     _check_mesh(v, kind, problems)
     return warnings
 
@@ -363,6 +367,10 @@ def _check_support(v: dict, problems: list[str]) -> None:
 
 
 def _check_mesh(v: dict, kind: str, problems: list[str]) -> None:
+    divisions = v["mesh.angular_divisions"]
+    if divisions % 2:
+        problems.append(f"mesh.angular_divisions = {divisions}: must be even (harmonics 0 … N on 2N "
+                        "angles); allowed: 8, 10, … 256")
     t = v["lining.thickness"]
     alpha = math.radians(v["interface.semi_cone_angle"])
     slant = (v["interface.outer_radius"] - v["interface.inner_radius"]) / math.sin(alpha)

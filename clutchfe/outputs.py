@@ -14,13 +14,18 @@ from .results import write_json
 STRESS_LABEL = "von Mises [MPa]"
 
 
-def write_all(folder: Path, case, section, mesh, fe, result: dict, summary: dict) -> None:
+def write_all(folder: Path, case, section, mesh, fe, result: dict, summary: dict,
+              axisymmetric: bool = True) -> None:
+    """The standard files.  A tilted solve has no (r, z) displacement field and its
+    pressure.csv (with theta) comes from the tilt stage, so those are left to it."""
     from .geometry import section_picture, write_mesh
     from .plots import effective_radius_bar, pressure_plot
 
     write_json(folder / "summary.json", summary)
-    write_pressure_csv(folder / "pressure.csv", fe)
-    write_solution_vtu(folder / "solution.vtu", mesh, fe)
+    if axisymmetric:
+        write_pressure_csv(folder / "pressure.csv", fe)
+        write_solution_vtu(folder / "solution.vtu", mesh, fe)
+        deformed_picture(folder / "deformed.png", mesh, fe, case.name)
     write_mesh(mesh, folder / "mesh.vtu")
     section_picture(section, mesh, folder / "section.png",
                     title=f"{case.name}: {len(mesh.triangles)} triangles, {len(mesh.points)} nodes")
@@ -29,7 +34,6 @@ def write_all(folder: Path, case, section, mesh, fe, result: dict, summary: dict
     effective_radius_bar(folder / "effective_radius.png", case.interface.inner_radius,
                          case.interface.outer_radius, result["radius_uniform_pressure_mm"],
                          result["radius_uniform_wear_mm"], result["effective_radius_mm"])
-    deformed_picture(folder / "deformed.png", mesh, fe, case.name)
 
 
 def write_pressure_csv(path: Path, fe) -> None:
@@ -130,6 +134,11 @@ def print_table(console, case, summary: dict, folder: Path) -> None:
     console.print(summary["verdict"], markup=False)
     for warning in summary.get("warnings", []):
         console.print(f"warning: {warning}", markup=False, style="bold red")
-    console.print(f"results: {folder}/ (report.html, summary.json, pressure.csv, solution.vtu, pressure.png, "
-                  "deformed.png)")
+    if "tilt_moment_Nm" in summary:
+        console.print(f"tilt {summary['axis_tilt_deg']:g} deg, offset {summary['radial_offset_mm']:g} mm "
+                      f"({summary['guidance']}): peak {summary['peak_pressure_MPa']:.4f} MPa at "
+                      f"r = {summary['peak_pressure_r_mm']:.2f} mm, theta = {summary['peak_pressure_theta_deg']:.1f} deg; "
+                      f"tilting moment on the guidance {summary['tilt_moment_Nm']:.2f} N·m", markup=False)
+    files = sorted(p.name for p in Path(folder).iterdir() if p.is_file()) if Path(folder).is_dir() else []
+    console.print(f"results: {folder}/ ({', '.join(files)})", markup=False)
     console.print(f"caution: {summary['caution']}", markup=False, style="italic")

@@ -108,6 +108,7 @@ class SolvedCase:
     fe: object              # fem.FeResult
     hand: object            # comparison.HandCapacity
     result: dict            # comparison.compare(...)
+    tilt: object = None     # tilt.TiltResult when the case has an axis tilt or radial offset
 
 
 # Extra analyses of a run: each takes (solved case, summary dict, scratch results folder), adds
@@ -133,9 +134,12 @@ def solved_case(case: Case, section=None, mesh=None) -> SolvedCase:
     section = section if section is not None else section_of(case)
     mesh = mesh if mesh is not None else mesh_section(section, order=1)
     if case.misalignment.axis_tilt or case.misalignment.radial_offset:
-        key = "axis_tilt" if case.misalignment.axis_tilt else "radial_offset"
-        raise CaseError([f"misalignment.{key} = {getattr(case.misalignment, key):g}: the non-axisymmetric "
-                         "solve is not in this version; allowed here: 0"])
+        from .tilt import solve_tilted
+        try:
+            t = solve_tilted(case, section, mesh)
+        except fem.ContactError as exc:
+            raise PhysicsError(str(exc)) from None
+        return SolvedCase(case, section, mesh, None, t.solver, t.fe, hand_of(case), t.result, tilt=t)
     model = fe_model_of(case, section, mesh)
     try:
         solver = fem.ContactSolver(model)
@@ -169,7 +173,8 @@ def run_case(case: Case, section, folder: Path, console) -> dict:
         with atomic_folder(folder) as tmp:
             for analysis in ANALYSES:
                 analysis(solved, summary, tmp)
-            outputs.write_all(tmp, case, section, solved.mesh, solved.fe, solved.result, summary)
+            outputs.write_all(tmp, case, section, solved.mesh, solved.fe, solved.result, summary,
+                              axisymmetric=solved.tilt is None)
             progress.update(task, advance=1, description="reports")
             for report in REPORTS:
                 report(solved, summary, tmp)
@@ -210,10 +215,17 @@ def summary_of(case: Case, mesh, fe, result: dict) -> dict:
     return summary
 
 
+def _tilt_files(solved: SolvedCase, summary: dict, folder: Path) -> None:
+    if solved.tilt is not None:
+        from .tilt import add_tilt_to_run
+        add_tilt_to_run(solved.tilt, summary, folder)
+
+
 def _register_stages() -> None:
     # imported here: the stage modules import this module
     from .report import add_report_to_run
     from .wear import add_wear_to_run
+    ANALYSES.append(_tilt_files)
     ANALYSES.append(add_wear_to_run)
     REPORTS.append(add_report_to_run)
 

@@ -184,10 +184,15 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "coning": Key("mm", "initial axial out-of-flatness of the pressure plate face at r2 relative to r1; "
                       "> 0 touches first at r1", default=0.0, low=-1.0, high=1.0, low_inclusive=True,
                       high_inclusive=True, kinds=PLATE),
-        "axis_tilt": Key("deg", "tilt between the axes of the two halves (needs the non-axisymmetric solve)",
+        "axis_tilt": Key("deg", "tilt between the pressed part's axis and its mate's (solved with Fourier "
+                         "harmonics and contact on the (r, θ) face)",
                          default=0.0, low=0.0, high=2.0, low_inclusive=True, high_inclusive=True),
-        "radial_offset": Key("mm", "offset between the axes of the two halves (needs the non-axisymmetric solve)",
+        "radial_offset": Key("mm", "offset between the axes of the two halves (solved with Fourier harmonics "
+                             "and contact on the (r, θ) face)",
                              default=0.0, low=0.0, high=5.0, low_inclusive=True, high_inclusive=True),
+        "guidance": Key("", "how the pressed part's tilt is held: \"held\" by its guidance (shaft, splines, "
+                        "bearings; the tilting moment is reported) or \"self_aligning\" (free tilt, zero moment)",
+                        str, default="held", choices=("held", "self_aligning")),
     },
     "requirement": {
         "required_torque": Key("N·m", "torque the clutch must transmit (optional)", low=0.0),
@@ -207,6 +212,9 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "lining_layers": Key("", "elements through the lining thickness", int, default=2,
                              low=1, high=20, low_inclusive=True, high_inclusive=True),
         "element_order": Key("", "1 = linear, 2 = quadratic triangles", int, default=2, choices=(1, 2)),
+        "angular_divisions": Key("", "angles of the contact grid around the axis for tilt and offset "
+                                 "(harmonics 0 … half of it)", int, default=48, low=8, high=256,
+                                 low_inclusive=True, high_inclusive=True),
     },
     "wear": {
         "wear_coefficient": Key("mm³/(N·m)", "Archard wear coefficient k of the lining (wear depth rate = "

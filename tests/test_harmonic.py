@@ -1,0 +1,118 @@
+"""Harmonic (Fourier) elasticity and the FFT grid contact on small hand-built sections.
+
+Sources beside each check: Zienkiewicz & Taylor, The Finite Element Method, "axisymmetric
+solids under non-symmetric load" (harmonic strains, rigid modes); Johnson, Contact
+Mechanics (1985), elastic-foundation (Winkler) model of a thin layer.
+"""
+import math
+import sys
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+sys.path.insert(0, str(Path(__file__).resolve().parent / "fem"))
+from fem_meshes import Section  # noqa: E402
+
+from clutchfe.fem import FaceLoad, FeModel, SpringSupport, assemble  # noqa: E402
+from clutchfe.fem.fft_contact import CirculantCompliance  # noqa: E402
+from clutchfe.fem.harmonic import HarmonicStiffness  # noqa: E402
+from clutchfe.fem.tilted import TiltedContactSolver  # noqa: E402
+
+R1, R2, T_LINING, E_LINING = 60.0, 75.0, 0.5, 10.0
+W = 2000.0
+
+
+def lined_blocks(E_steel=2e8, order=2, nu_lining=0.0, E_top=None, elements=15):
+    """Base block (rigid-ish steel) with a bonded lining on top; pressed steel block above."""
+    r = np.linspace(R1, R2, elements + 1)
+    sec = Section()
+    z_base = np.concatenate([np.linspace(-5.0, 0.0, 3), np.linspace(0.0, T_LINING, 3)[1:]])
+    sec.add_block("base", r, z_base)
+    sec.add_block("top", r, np.linspace(T_LINING, T_LINING + 5.0, 3))
+    pair = sec.pair("s1", "base_top", "top_bottom", (0.0, 1.0))
+    mid_z = sec.points[1][sec.triangles].mean(axis=0)
+    lining = (sec.element_body == 0) & (mid_z > 0.0)
+    E = np.where(lining, E_LINING, np.where(sec.element_body == 1, E_top or E_steel, E_steel))
+    nu = np.where(lining, nu_lining, 0.3)
+    return FeModel(sec.points, sec.triangles, sec.element_body, E, nu, ["base", "top"], [False, True],
+                   dict(sec.faces), supports=[SpringSupport("base_bottom", axial_stiffness=None, radial_stiffness=None)],
+                   loads=[FaceLoad("top_top", -W)], contacts=[pair], element_order=order)
+
+
+def test_harmonic_zero_reproduces_the_axisymmetric_stiffness():
+    # n = 0 strains of the harmonic set are the axisymmetric ones (Zienkiewicz & Taylor)
+    system = assemble(lined_blocks())
+    hs = HarmonicStiffness(system)
+    K0 = hs.matrix(0)[hs.dof3][:, hs.dof3]
+    assert abs(K0 - system.K).max() <= 1e-12 * abs(system.K).max()
+
+
+def test_only_the_first_harmonic_holds_the_rigid_tilt():
+    # a rigid rotation about a diameter is a first harmonic: u_r = (z - z0), u_θ = -(z - z0),
+    # u_z = -r (Zienkiewicz & Taylor); it strains every other harmonic
+    system = assemble(lined_blocks(E_steel=2e5))
+    hs = HarmonicStiffness(system)
+    x, z = hs.basis.doflocs[0], hs.basis.doflocs[1]
+    mode = np.zeros(hs.basis.N)
+    for comp, value in ((0, z - 3.0), (2, -(z - 3.0)), (1, -x)):
+        d = np.concatenate(hs._dofs(hs.basis, comp))
+        mode[d] = value[d]
+    energy = {}
+    for n in (0, 1, 2, 5):
+        K = hs.matrix(n)
+        assert abs(K - K.T).max() <= 1e-12 * abs(K).max()
+        energy[n] = mode @ (K @ mode)
+    assert abs(energy[1]) <= 1e-12 * max(energy.values())
+    assert min(energy[0], energy[2], energy[5]) > 1e6 * abs(energy[1])
+
+
+def test_circulant_compliance_matches_the_dense_kernel():
+    # the FFT product equals the dense block-circulant matrix h(θ_m) = C0 + 2 Σ Cn cos nθ_m + C_{M/2} cos πm
+    rng = np.random.default_rng(4)
+    k, M = 3, 8
+    C = []
+    for _ in range(M // 2 + 1):
+        a = rng.normal(size=(k, k))
+        C.append(a @ a.T + k * np.eye(k))
+    op = CirculantCompliance(np.array(C))
+    lam = rng.normal(size=(k, M))
+    th = 2 * np.pi * np.arange(M) / M
+    dense = np.zeros((k, M))
+    for j in range(M):
+        for jj in range(M):
+            m = (j - jj) % M
+            h = C[0] + sum(2 * C[n] * np.cos(n * th[m]) for n in range(1, M // 2)) + C[M // 2] * np.cos(np.pi * m)
+            dense[:, j] += h @ lam[:, jj]
+    assert np.allclose(op.apply(lam), dense, rtol=1e-12, atol=1e-12)
+    assert np.allclose(op.inverse(op.apply(lam)), lam, atol=1e-10)
+
+
+def test_winkler_lining_under_small_tilt():
+    """Thin lining on numerically rigid steel: p = k (δ0 + φ r cos θ), k = E / t for ν = 0
+    (elastic-foundation model, Johnson, Contact Mechanics 1985, §9.2 'elastic foundation').
+    The tilting moment is then k φ ∫ r² cos²θ dA = k φ π (r2⁴ − r1⁴) / 4."""
+    solver = TiltedContactSolver(lined_blocks(), "top", grid=16)
+    k = E_LINING / T_LINING
+    area = math.pi * (R2 ** 2 - R1 ** 2)
+    delta0 = W / (k * area)
+    phi = 0.5 * delta0 / R2                      # keeps the whole face closed
+    res = solver.solve(tilt_deg=math.degrees(phi))
+    g = res.interfaces[0]
+    assert g.in_contact.all()
+    expected = k * (delta0 + phi * g.r[:, None] * np.cos(g.theta)[None])
+    inner = (g.r > R1 + 2 * T_LINING) & (g.r < R2 - 2 * T_LINING)     # away from the free lining ends
+    err = np.abs(g.pressure[inner] - expected[inner]).max() / expected.max()
+    assert err < 0.01, err
+    moment = k * phi * math.pi * (R2 ** 4 - R1 ** 4) / 4
+    assert abs(abs(res.moment[0]) - moment) / moment < 0.02
+    assert abs(res.moment[1]) < 1e-8 * moment
+
+
+def test_zero_tilt_equals_the_axisymmetric_solve():
+    # linear elasticity: with no tilt the θ-uniform gap excites harmonic 0 only
+    solver = TiltedContactSolver(lined_blocks(E_steel=2e5), "top", grid=16)
+    ax = solver.base.solve(fields=False).interfaces[0]
+    g = solver.solve().interfaces[0]
+    assert np.allclose(g.normal_force.sum(axis=1), ax.normal_force, rtol=1e-6, atol=1e-9 * W)
+    assert abs(g.pressure.max() / ax.pressure.max() - 1) < 1e-6
