@@ -16,6 +16,7 @@ from .checks import Check
 from .contact import hertz_sphere_on_flat, rigid_flat_punch
 from .limits import linear_gap, load_linearity, thin_lining_limit
 from .solids import lame_cylinder
+from .wear_limit import uniform_wear_limit
 
 
 @dataclass(frozen=True)
@@ -31,6 +32,7 @@ CASES: list[VerificationCase] = [
     VerificationCase("thin lining on rigid bodies (elastic-foundation limit)", thin_lining_limit),
     VerificationCase("rigid-backed lining with a linear gap", linear_gap),
     VerificationCase("linearity in force and friction coefficient", load_linearity),
+    VerificationCase("uniform-wear limit (Archard wear-in of a Winkler lining)", uniform_wear_limit),
 ]
 
 _memo: dict[tuple, tuple] = {}
