@@ -25,7 +25,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 import scipy.sparse as sp
-from threadpoolctl import threadpool_limits
+from threadpoolctl import ThreadpoolController, threadpool_limits
 
 from .fft_contact import CirculantCompliance, solve_grid_contact
 from .harmonic import HarmonicStiffness, harmonic_compliance
@@ -64,6 +64,19 @@ class TiltedResult:
     sweeps: int
     cg_iterations: int
     timings: dict[str, float] = field(default_factory=dict)
+    grid: object = None                 # fft_contact.GridSolution, a start for a nearby tilt
+
+
+_threads = None
+
+
+def _one_thread():
+    """A BLAS limit of one thread (design.md §6) from a controller found once: looking the
+    libraries up again costs milliseconds, as much as a whole warm-started tilt."""
+    global _threads
+    if _threads is None:
+        _threads = ThreadpoolController()
+    return _threads.limit(limits=1)
 
 
 def _ring_vertex(system, body: int, face: str | None, radius: float | None) -> int:
@@ -134,7 +147,10 @@ class TiltedContactSolver:
         return self._side(j) * (self.nr * (self.z - z0) - self.nz * self.r)
 
     def solve(self, tilt_deg: float = 0.0, offset_mm: float = 0.0, self_aligning: bool = False,
-              load_scale: float = 1.0) -> TiltedResult:
+              load_scale: float = 1.0, start: TiltedResult | None = None) -> TiltedResult:
+        """Contact at one tilt/offset/load level.  ``start``: a solution of a nearby problem
+        (the previous value of a sweep) whose closed set and forces seed the active set; it
+        saves sweeps, the answer is the same to the solver tolerance."""
         t0 = time.perf_counter()
         base, M = self.base, self.M
         cos, sin = np.cos(self.theta), np.sin(self.theta)
@@ -152,8 +168,10 @@ class TiltedContactSolver:
             cols += [b[:, None] * cos[None], b[:, None] * sin[None]]
             e += [0.0, 0.0]
         B = np.stack(cols, axis=2)
-        with threadpool_limits(limits=1):
-            sol = solve_grid_contact(self.op, g, B, np.array(e))
+        with _one_thread():
+            seed = start.grid if start is not None else None
+            sol = solve_grid_contact(self.op, g, B, np.array(e), closed=None if seed is None else seed.closed,
+                                     lam0=None if seed is None else seed.lam)
         nb = base.B.shape[1]
         names = base.system.model.body_names
         approach = {names[j]: float(sol.delta[c]) for c, j in enumerate(base.prep.free_bodies)}
@@ -170,7 +188,7 @@ class TiltedContactSolver:
         timings = dict(self.timings, contact=time.perf_counter() - t0)
         timings["total"] = timings["prepare"] + timings["contact"]
         return TiltedResult(self._interfaces(sol), approach, tilt, moment, M // 2, balance,
-                            sol.iterations, sol.cg_iterations, timings)
+                            sol.iterations, sol.cg_iterations, timings, sol)
 
     def _interfaces(self, sol) -> list[GridInterface]:
         out, start = [], 0

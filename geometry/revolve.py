@@ -5,6 +5,17 @@ tetrahedra by the rule of Dompierre et al. (1999, "How to subdivide pyramids, pr
 hexahedra into tetrahedra"): every quadrilateral face takes the diagonal through its
 smallest global vertex number, so neighbouring prisms agree and the mesh is conforming.
 Node (v, j) of section vertex v at angle θ_j = 2π j / layers has number j · n_vertices + v.
+
+Why not a gmsh revolve (the issue's wording): this does what gmsh's layered
+``revolve(..., numElements=[layers])`` followed by tetrahedral splitting does — same
+structured prism layers, same conforming split — but on the FE stage's own triangles
+(``FeModel.points``/``triangles``), which are not always a gmsh model (the tests' hand-built
+blocks) and would otherwise need a second meshing of the section.  Keeping the section's
+vertices unchanged is what the 3D contact needs: node (v, j) of a friction face lies exactly
+on node (v', j) of its mate, so the 3D node pairs, ring loads and supports come from the
+section's own pairing without any geometric search; a full 360° gmsh revolve has to be
+split into sweeps below 180° and its seam nodes merged first.  Conformity is tested
+(tests/test_tilt.py: every interior face shared by exactly two tetrahedra).
 """
 from __future__ import annotations
 

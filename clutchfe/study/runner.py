@@ -107,7 +107,7 @@ def cluster(workers: int | None, scheduler: str | None):
             client = Client(scheduler, timeout="20s")
         except (OSError, TimeoutError, ValueError) as exc:
             raise CaseError([f"--scheduler = {scheduler!r}: cannot connect ({exc}); allowed: the address of a "
-                             "running dask scheduler, e.g. tcp://10.0.0.5:8786"]) from None
+                             "running dask scheduler, e.g. tcp://scheduler-host:8786"]) from None
         with client:
             yield client
         return

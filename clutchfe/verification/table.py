@@ -16,6 +16,7 @@ from .checks import Check
 from .contact import hertz_sphere_on_flat, rigid_flat_punch
 from .limits import linear_gap, load_linearity, thin_lining_limit
 from .solids import lame_cylinder
+from .tilted import harmonic_vs_solid, winkler_small_tilt
 from .wear_limit import uniform_wear_limit
 
 
@@ -33,6 +34,8 @@ CASES: list[VerificationCase] = [
     VerificationCase("rigid-backed lining with a linear gap", linear_gap),
     VerificationCase("linearity in force and friction coefficient", load_linearity),
     VerificationCase("uniform-wear limit (Archard wear-in of a Winkler lining)", uniform_wear_limit),
+    VerificationCase("lining under a small axis tilt (elastic-foundation limit)", winkler_small_tilt),
+    VerificationCase("axis tilt: harmonics against a 3D solve", harmonic_vs_solid),
 ]
 
 _memo: dict[tuple, tuple] = {}

@@ -1,10 +1,13 @@
 """Tilted contact: harmonic model (FFT grid) against the 3D tetrahedral reference.
 
-Prints, for one tilted plate (lining on a steel base, stiff pressed block, part of the face
-open): harmonic solve time, 3D reference time, their ratio (target >= 20x at equal accuracy),
-the accuracy of both against the finest 3D model, and the time of one extra tilt value
-reusing the condensed compliance (target: milliseconds). Ratios from one run; no asserts.
+Prints, for a tilted lined plate and the coarse test cone of tests/test_tilt.py (part of the
+face open): harmonic solve time, 3D reference time, their ratio (target >= 20x at equal
+accuracy: the accuracy of each against the finest 3D model is printed beside it), and for
+those and the demo cases the time of one extra tilt value reusing the condensed compliance
+(target: milliseconds), cold and warm-started from the previous tilt.  Ratios from one run;
+no asserts.
 """
+import copy
 import sys
 import time
 from pathlib import Path
@@ -13,39 +16,89 @@ import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "fem"))
+from conftest import CONE  # noqa: E402
 from test_harmonic import lined_blocks  # noqa: E402
 
 from clutchfe.fem.solid3d import Solid3d  # noqa: E402
 from clutchfe.fem.tilted import TiltedContactSolver  # noqa: E402
 
-TILT = 0.05   # deg
+ROOT = Path(__file__).resolve().parents[2]
 
 
 def torque(interfaces):
     return sum(float((g.normal_force.sum(axis=1) * g.r).sum()) for g in interfaces)
 
 
-def main():
-    model = lined_blocks(E_steel=2e5, order=1, nu_lining=0.25, E_top=2e8, elements=5)
-    t0 = time.perf_counter()
-    solver = TiltedContactSolver(model, "top", grid=32)
-    h = solver.solve(tilt_deg=TILT)
-    t_h = time.perf_counter() - t0
-    t0 = time.perf_counter()
-    solver.solve(tilt_deg=1.3 * TILT)
-    t_extra = time.perf_counter() - t0
-    rows = []
-    for layers in (32, 64):
+def extra_tilt(solver, tilt, repeat=5):
+    """Median time of one more tilt value, cold (whole face closed at the start) and warm
+    (started from the solution at the previous tilt)."""
+    prev = solver.solve(tilt_deg=tilt)
+    cold, warm = [], []
+    for k in range(repeat):
+        t_new = tilt * (1.0 + 0.05 * (k + 1))
         t0 = time.perf_counter()
-        ref = Solid3d(model, layers, pressed="top").solve(tilt_deg=TILT, pivot_z=solver.pivot_z)
-        rows.append((layers, time.perf_counter() - t0, ref))
+        solver.solve(tilt_deg=t_new)
+        cold.append(time.perf_counter() - t0)
+        t0 = time.perf_counter()
+        prev = solver.solve(tilt_deg=t_new, start=prev)
+        warm.append(time.perf_counter() - t0)
+    return 1000 * float(np.median(cold)), 1000 * float(np.median(warm))
+
+
+def compare(label, model, pressed, tilt, layers):
+    t0 = time.perf_counter()
+    solver = TiltedContactSolver(model, pressed, grid=32)
+    h = solver.solve(tilt_deg=tilt)
+    t_h = time.perf_counter() - t0
+    rows = []
+    for n in layers:
+        t0 = time.perf_counter()
+        ref = Solid3d(model, n, pressed=pressed).solve(tilt_deg=tilt, pivot_z=solver.pivot_z)
+        rows.append((n, time.perf_counter() - t0, ref))
     finest = rows[-1][2].interfaces
-    print(f"harmonic model, 16 harmonics on a 32-angle grid: {t_h:.3f} s "
-          f"(torque {torque(h.interfaces) / torque(finest) - 1:+.2e}, "
-          f"peak {h.interfaces[0].pressure.max() / finest[0].pressure.max() - 1:+.2e} vs finest 3D)")
-    for layers, t, ref in rows:
-        print(f"3D reference, {layers} layers, {ref.dofs} dofs: {t:.3f} s, ratio 3D/harmonic = {t / t_h:.1f} x")
-    print(f"one extra tilt value reusing the condensed compliance: {1000 * t_extra:.1f} ms")
+
+    def acc(its):
+        return (f"torque {torque(its) / torque(finest) - 1:+.1e}, "
+                f"peak {its[0].pressure.max() / finest[0].pressure.max() - 1:+.1e} vs finest 3D")
+
+    print(f"{label}, tilt {tilt:g} deg, open {1 - h.interfaces[0].in_contact.mean():.0%} of the face")
+    print(f"  harmonic model, 16 harmonics on a 32-angle grid: {t_h:.3f} s ({acc(h.interfaces)})")
+    for n, t, ref in rows:
+        print(f"  3D reference, {n} layers, {ref.dofs} dofs: {t:.2f} s, 3D / harmonic = {t / t_h:.0f} x"
+              + (f" ({acc(ref.interfaces)})" if n != layers[-1] else " (finest)"))
+    cold, warm = extra_tilt(solver, tilt)
+    print(f"  one extra tilt value reusing the condensed compliance: {cold:.1f} ms cold, {warm:.1f} ms warm")
+
+
+def demo(name, tilt=None):
+    from clutchfe import tilt as tilt_stage
+    from clutchfe.case import load_case
+    case = load_case(ROOT / "cases" / name)
+    t0 = time.perf_counter()
+    res = tilt_stage.solve_tilted(case, tilt_deg=tilt)
+    t_all = time.perf_counter() - t0
+    cold, warm = extra_tilt(res.solver, res.axis_tilt_deg)
+    k, M = res.solver.op.shape
+    print(f"demo {name} (tilt {res.axis_tilt_deg:g} deg, {k} x {M} grid): first solve incl. mesh and "
+          f"condensation {t_all:.2f} s; extra tilt {cold:.1f} ms cold, {warm:.1f} ms warm")
+
+
+def main():
+    compare("lined plate (stiff pressed block)", lined_blocks(E_steel=2e5, order=1, nu_lining=0.25, E_top=2e8,
+                                                             elements=5), "top", 0.05, (32, 64))
+    from clutchfe.case import case_from_dict
+    from clutchfe.geometry import mesh_section
+    from clutchfe.pipeline import fe_model_of, section_of
+    data = copy.deepcopy(CONE)
+    data["cone"] = {"youngs_modulus": 2e8}
+    data["mesh"] = {"element_order": 1, "interface_element_size": 2.5, "edge_element_size": 1.25,
+                    "element_size": 7.5, "lining_layers": 1}
+    case = case_from_dict(data)
+    section = section_of(case)
+    model = fe_model_of(case, section, mesh_section(section, order=1))
+    compare("coarse test cone (stiff inner cone)", model, "cone", 0.06, (32, 48))
+    demo("cone_capstan_tilted.toml")
+    demo("plate_tractor.toml", tilt=0.05)
 
 
 if __name__ == "__main__":
