@@ -366,3 +366,20 @@ def test_interrupted_study_continues_without_loss_or_repeat(stiffness_reference,
                      name="stiff")
     with pytest.raises(CaseError, match="different study plan"):
         run_study(changed, workers=1, console=QUIET, out=out)
+
+
+def test_study_command_runs_and_rejects_bad_files(tmp_path, capsys):
+    from clutchfe.cli import main
+    path = _study(tmp_path, CONE, {"vary": [{"key": "interface.friction_coefficient",
+                                              "values": [0.15, 0.3]}]}, name="cli")
+    out = tmp_path / "out"
+    assert main(["study", str(path), "--workers", "1", "--out", str(out)]) == 0
+    summary = _strict_json(out / "study.json")
+    assert summary["samples_done"] == 2 and summary["samples_failed"] == 0
+    rows = _csv(out / "samples.csv")
+    torques = sorted(float(r["torque_fe_Nm"]) for r in rows)
+    assert torques[1] == pytest.approx(2 * torques[0], rel=1e-9)       # T linear in mu (design.md §5)
+    bad = _study(tmp_path, CONE, {"vary": [{"key": "interface.friction_coefficent", "values": [0.2]}]}, name="bad")
+    assert main(["study", str(bad), "--out", str(tmp_path / "bad")]) == 2
+    err = capsys.readouterr().err
+    assert "friction_coefficent" in err and "Traceback" not in err
