@@ -30,7 +30,7 @@ from .condense import condense
 from .forms import lame
 from .lcp import solve_lcp
 from .model import FeModel
-from .pairing import gap_operator, pair_face
+from .pairing import pair_face
 from .tilted import GridInterface
 
 

@@ -14,7 +14,7 @@ import numpy as np
 from scipy import stats
 
 from ..results import clean_json, versions, write_json
-from .spec import CORE_OUTPUTS, OUTPUTS, Study, case_key
+from .spec import OUTPUTS, Study, case_key
 
 CONFIDENCE = 0.95
 QUANTILES = (0.05, 0.5, 0.95)
