@@ -55,6 +55,7 @@ def restraints(system: System) -> tuple[list[int], np.ndarray]:
             held[_face_body(system, s.face)] = True
     free, pins = [], []
     fixed = set(system.fixed.tolist())
+    on_faces = _contact_face_dofs(system)
     for j, name in enumerate(model.body_names):
         if model.body_axially_free[j] and held[j]:
             raise ValueError(f"body {name!r} is marked axially free but also has an axial "
@@ -66,9 +67,21 @@ def restraints(system: System) -> tuple[list[int], np.ndarray]:
             z = [d for d in axial_dofs_of_body(system, j) if d not in fixed]
             if not z:
                 raise ValueError(f"body {name!r} has no elements")
+            # a pin off the contact faces keeps every contact node's two dofs, which the
+            # normal-component condensation needs (fem/condense.py)
+            off_faces = [d for d in z if d not in on_faces]
             free.append(j)
-            pins.append(z[0])
+            pins.append((off_faces or z)[0])
     return free, np.array(pins, dtype=np.int64)
+
+
+def _contact_face_dofs(system: System) -> set[int]:
+    dofs: set[int] = set()
+    for pair in system.model.contacts:
+        for face in (pair.face_a, pair.face_b):
+            if face in system.facets:
+                dofs.update(system.basis.get_dofs(system.facets[face]).flatten().tolist())
+    return dofs
 
 
 class Prepared:
