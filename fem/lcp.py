@@ -13,15 +13,17 @@ lam >= 0, B^T lam = -e, with delta the multipliers of the balance equations
 Solved by a primal-dual active set (Hintermueller, Ito & Kunisch, SIAM J. Optim.
 2003: semismooth Newton, usually converges in a few sweeps).  Should it cycle,
 a primal active-set method (Nocedal & Wright 2006, Algorithm 16.3) finishes
-from a feasible point found by linear programming; it terminates finitely
-because C is positive definite.
+from a feasible point found by linear programming.  Where balance and bound
+constraints are dependent (degenerate) an active set can cycle; then the problem
+is solved as a weighted non-negative least-squares problem (Lawson & Hanson 1974),
+which is finite, and polished on its support.
 """
 from __future__ import annotations
 
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import linprog
+from scipy.optimize import linprog, nnls
 
 # A node counts as closed when its gap is below GAP_TOLERANCE times the
 # largest displacement scale of the problem; forces below FORCE_TOLERANCE times
@@ -134,6 +136,11 @@ def primal_active_set(C, g, B, e, max_iter=None):
             i = int(np.argmin(gap_w)) if n else 0
             if n == 0 or gap_w[i] >= -tol_g:
                 return LcpSolution(lam, delta, gap, it, "primal active set")
+            # with dependent constraints the translations are not unique: another choice may
+            # close every gap at this lam, and then lam is optimal (adding i would cycle)
+            other = _other_translation(C, g, B, lam, tol_g)
+            if other is not None:
+                return LcpSolution(lam, other, _gap(C, g, B, lam, other), it, "primal active set")
             F[i] = True
             continue
         blocking = F & (p < -tol_f)     # round-off must not block a step
@@ -145,7 +152,48 @@ def primal_active_set(C, g, B, e, max_iter=None):
         if alpha < 1.0:
             F[j] = False
             lam[j] = 0.0
-    raise ContactError(f"contact solve did not converge in {max_iter} active-set steps")
+    # degenerate problems (dependent balance and bound constraints) can make the active set cycle;
+    # the weighted least-squares form below is finite and does not
+    return penalised_nnls(C, g, B, e)
+
+
+def penalised_nnls(C, g, B, e) -> LcpSolution:
+    """The same problem as non-negative least squares (Lawson & Hanson 1974, ch. 23), the balance
+    equations weighted heavily (their weighting method for equality constraints, ch. 22), then the
+    forces polished by the exact subproblem on their support and the translations found by LP."""
+    n, nb = B.shape
+    R = np.linalg.cholesky(C).T                      # C = R^T R, so 1/2 lam C lam + g lam = 1/2 |R lam + c|^2 + const
+    c = np.linalg.solve(R.T, g)
+    weight = 1e6 * np.abs(R).max() / max(np.abs(B).max(initial=0.0), 1e-300)
+    A = np.vstack([R, weight * B.T])
+    b = np.concatenate([-c, -weight * e])
+    lam, _ = nnls(A, b, maxiter=50 * (n + nb) + 100)
+    tol_g, tol_f = _scales(C, g, B, e, lam)
+    support = lam > tol_f
+    exact = _kkt(C, g, B, e, support, consistent=True)
+    if exact is not None and np.all(exact[0][support] >= -tol_f):
+        lam = np.where(support, np.maximum(exact[0], 0.0), 0.0)
+    delta = _other_translation(C, g, B, lam, tol_g)
+    if delta is None:
+        if nb and np.abs(B.T @ lam + e).max(initial=0.0) > 1e3 * tol_f:
+            raise ContactError("the balance of the free bodies cannot be met with compressive "
+                               "contact forces: the interface cannot carry the load")
+        delta = np.linalg.lstsq(B[support], -(g + C @ lam)[support], rcond=None)[0] if nb else np.zeros(0)
+    return LcpSolution(lam, delta, _gap(C, g, B, lam, delta), 0, "weighted NNLS")
+
+
+def _other_translation(C, g, B, lam, tol_g):
+    """Translations delta with gap = 0 where lam > 0 and gap >= 0 elsewhere, or None (an LP)."""
+    nb = B.shape[1]
+    if nb == 0:
+        return None
+    base = g + C @ lam
+    carrying = lam > 0
+    # -tol <= (B delta + base)_i <= tol where lam_i > 0;  (B delta + base)_i >= 0 elsewhere
+    A_ub = np.vstack([B[carrying], -B[carrying], -B[~carrying]])
+    b_ub = np.concatenate([tol_g - base[carrying], tol_g + base[carrying], base[~carrying]])
+    res = linprog(np.zeros(nb), A_ub=A_ub, b_ub=b_ub, bounds=[(None, None)] * nb, method="highs")
+    return res.x if res.status == 0 else None
 
 
 def solve_lcp(C, g, B, e) -> LcpSolution:

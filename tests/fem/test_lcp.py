@@ -63,3 +63,12 @@ def test_unbalanceable_load_raises():
     B = np.array([[1.0], [1.0], [1.0]])      # every contact pushes the body the same way
     with pytest.raises(ContactError):
         solve_lcp(C, np.zeros(3), B, np.array([1.0]))
+
+
+@pytest.mark.parametrize("seed,n,nb", [(240, 3, 2), (14, 4, 3), (55, 8, 2), (85, 8, 2), (93, 5, 3)])
+def test_degenerate_problems_that_made_the_active_set_cycle(seed, n, nb):
+    # dependent balance and bound constraints (found by a sweep over random problems); the
+    # fallback must still meet the KKT conditions (Nocedal & Wright 2006, §16.1)
+    C, g, B, e = problem(seed, n, nb)
+    sol = primal_active_set(C, g, B, e)
+    check_kkt(C, g, B, e, sol)
