@@ -1,8 +1,15 @@
 """Shared fixtures: small valid cases built in code (demo data only, invented)."""
 import copy
+import os
 from pathlib import Path
 
 import pytest
+from hypothesis import settings
+
+# CI explores the same examples every run (same input, same output); local runs keep exploring
+settings.register_profile("ci", derandomize=True, deadline=None)
+if os.environ.get("CI"):
+    settings.load_profile("ci")
 
 ROOT = Path(__file__).resolve().parents[1]
 CASES = sorted(p for p in (ROOT / "cases").glob("*.toml") if not p.name.endswith(".study.toml"))
