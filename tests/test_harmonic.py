@@ -5,38 +5,22 @@ solids under non-symmetric load" (harmonic strains, rigid modes); Johnson, Conta
 Mechanics (1985), elastic-foundation (Winkler) model of a thin layer.
 """
 import math
-import sys
-from pathlib import Path
 
 import numpy as np
 
-sys.path.insert(0, str(Path(__file__).resolve().parent / "fem"))
-from fem_meshes import Section  # noqa: E402
-
-from clutchfe.fem import FaceLoad, FeModel, SpringSupport, assemble  # noqa: E402
-from clutchfe.fem.fft_contact import CirculantCompliance  # noqa: E402
-from clutchfe.fem.harmonic import HarmonicStiffness  # noqa: E402
-from clutchfe.fem.tilted import TiltedContactSolver  # noqa: E402
-
-R1, R2, T_LINING, E_LINING = 60.0, 75.0, 0.5, 10.0
-W = 2000.0
+from clutchfe.fem import assemble
+from clutchfe.fem.fft_contact import CirculantCompliance
+from clutchfe.fem.harmonic import HarmonicStiffness
+from clutchfe.fem.tilted import TiltedContactSolver
+from clutchfe.verification.tilted import LINING_E as E_LINING
+from clutchfe.verification.tilted import LINING_T as T_LINING
+from clutchfe.verification.tilted import R1, R2, W, lined_annulus
 
 
 def lined_blocks(E_steel=2e8, order=2, nu_lining=0.0, E_top=None, elements=15):
-    """Base block (rigid-ish steel) with a bonded lining on top; pressed steel block above."""
-    r = np.linspace(R1, R2, elements + 1)
-    sec = Section()
-    z_base = np.concatenate([np.linspace(-5.0, 0.0, 3), np.linspace(0.0, T_LINING, 3)[1:]])
-    sec.add_block("base", r, z_base)
-    sec.add_block("top", r, np.linspace(T_LINING, T_LINING + 5.0, 3))
-    pair = sec.pair("s1", "base_top", "top_bottom", (0.0, 1.0))
-    mid_z = sec.points[1][sec.triangles].mean(axis=0)
-    lining = (sec.element_body == 0) & (mid_z > 0.0)
-    E = np.where(lining, E_LINING, np.where(sec.element_body == 1, E_top or E_steel, E_steel))
-    nu = np.where(lining, nu_lining, 0.3)
-    return FeModel(sec.points, sec.triangles, sec.element_body, E, nu, ["base", "top"], [False, True],
-                   dict(sec.faces), supports=[SpringSupport("base_bottom", axial_stiffness=None, radial_stiffness=None)],
-                   loads=[FaceLoad("top_top", -W)], contacts=[pair], element_order=order)
+    """Base block (rigid-ish steel) with a bonded lining on top; pressed steel block above
+    (the verify suite's annulus, clutchfe/verification/tilted.py)."""
+    return lined_annulus(E_steel, E_top or E_steel, nu_lining, elements, order)
 
 
 def test_harmonic_zero_reproduces_the_axisymmetric_stiffness():

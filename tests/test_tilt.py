@@ -133,14 +133,8 @@ def test_tilted_plate_against_3d(plate_pair, tilt_deg):
     assert errors[1] <= errors[0] + 1e-3
 
 
-def test_tilted_cone_against_3d():
-    """The coarse test cone (P1, 2.5 mm elements, lining bonded to the inner cone) tilted 0.06°,
-    which opens about half of the face, against the 3D tetrahedral reference revolved in 16 and
-    32 layers: torque within 3 %, peak pressure within 10 % and closer on the finer 3D model,
-    open angle (360° × open fraction of the face area) within one grid cell (issue acceptance;
-    reference: independent 3D FE solve).  The inner cone's steel is made numerically rigid, as
-    the pressed block of the plate test, because the two models hold a tilted part differently
-    (a ring of the section vs 3-2-1 points); the cup and its rigid housing are the real ones."""
+def coarse_stiff_cone():
+    """The test cone, P1 with 2.5 mm elements, its inner cone made numerically rigid: (FeModel, section)."""
     from clutchfe.geometry import mesh_section
     from clutchfe.pipeline import fe_model_of, section_of
 
@@ -150,7 +144,18 @@ def test_tilted_cone_against_3d():
                     "element_size": 7.5, "lining_layers": 1}
     case = case_from_dict(data)
     section = section_of(case)
-    model = fe_model_of(case, section, mesh_section(section, order=1))
+    return fe_model_of(case, section, mesh_section(section, order=1)), section
+
+
+def test_tilted_cone_against_3d():
+    """The coarse test cone (P1, 2.5 mm elements, lining bonded to the inner cone) tilted 0.06°,
+    which opens about half of the face, against the 3D tetrahedral reference revolved in 16 and
+    32 layers: torque within 3 %, peak pressure within 10 % and closer on the finer 3D model,
+    open angle (360° × open fraction of the face area) within one grid cell (issue acceptance;
+    reference: independent 3D FE solve).  The inner cone's steel is made numerically rigid, as
+    the pressed block of the plate test, because the two models hold a tilted part differently
+    (a ring of the section vs 3-2-1 points); the cup and its rigid housing are the real ones."""
+    model, section = coarse_stiff_cone()
     pressed = next(b.name for b in section.bodies if b.role == "pressed")
     solver = TiltedContactSolver(model, pressed, grid=32)
     tilt_deg = 0.06

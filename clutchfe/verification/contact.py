@@ -33,18 +33,43 @@ def axis_settlement_half_space(depth: float, p0: float, a: float, E: float, nu: 
     return -quad(strain, depth, np.inf, limit=200)[0]
 
 
-def hertz_sphere_on_flat() -> list[Check]:
-    """Sphere R = 100 mm on a flat, both steel, loaded to a contact radius of 1 mm (P2 blocks of 40 a)."""
-    R, a_target, L, h, depth = 100.0, 1.0, 40.0, 0.05, 1.0
+# Hertz set-up: sphere radius, target contact radius, block size (40 a), node spacing, and the
+# depth of the axis points between which the approach is read
+HERTZ_R, HERTZ_A, HERTZ_BLOCK, HERTZ_H, HERTZ_DEPTH = 100.0, 1.0, 40.0, 0.05, 1.0
+
+
+def hertz_model():
+    """Two steel blocks with the gap r²/2R of a sphere on a flat: (blocks, FeModel, P, E*)."""
+    R = HERTZ_R
     Es = e_star(STEEL_E, STEEL_NU, STEEL_E, STEEL_NU)
-    P = 4 * Es * a_target**3 / (3 * R)
-    r = graded(0.0, 1.5, L, h)
+    P = 4 * Es * HERTZ_A**3 / (3 * R)
+    r = graded(0.0, 1.5, HERTZ_BLOCK, HERTZ_H)
     s = BlockSection().add_block("low", r, -r[::-1]).add_block("up", r, r)
     pair = s.pair("hertz", "low_top", "up_bottom", (0.0, 1.0))
     # the gap r^2/2R as a function so that P2 mid-nodes see the parabola, not its chord
     pair.initial_gap_function = lambda rr, zz: rr**2 / (2 * R)
     model = s.model([STEEL_E, STEEL_E], [STEEL_NU, STEEL_NU], [False, True], supports=[RIGID_BASE],
                     loads=[FaceLoad("up_top", -P)], contacts=[pair])
+    return s, model, P, Es
+
+
+def punch_model(a: float = 1.0, force: float = 1000.0):
+    """A numerically rigid punch (10^4 x stiffer) of radius a on a steel block of 40 a: (blocks, FeModel)."""
+    block = graded(0.0, 1.5, 40.0 * a, 0.025 * a)
+    s = BlockSection().add_block("low", block, -block[::-1])
+    s.add_block("punch", block[block <= a + 1e-12], np.linspace(0.0, 0.5 * a, 11))
+    top = s.faces["low_top"]
+    s.faces["low_top_centre"] = top[:, s.points[0, top].max(axis=0) <= a + 1e-12]
+    pair = s.pair("punch", "punch_bottom", "low_top_centre", (0.0, -1.0))
+    model = s.model([STEEL_E, 1e4 * STEEL_E], [STEEL_NU, STEEL_NU], [False, True], supports=[RIGID_BASE],
+                    loads=[FaceLoad("punch_top", -force)], contacts=[pair])
+    return s, model
+
+
+def hertz_sphere_on_flat() -> list[Check]:
+    """Sphere R = 100 mm on a flat, both steel, loaded to a contact radius of 1 mm (P2 blocks of 40 a)."""
+    R, depth = HERTZ_R, HERTZ_DEPTH
+    s, model, P, Es = hertz_model()
     res = solve(model)
     a = (3 * P * R / (4 * Es)) ** (1 / 3)          # a^3 = 3PR/4E*
     p0 = 3 * P / (2 * np.pi * a**2)                 # p0 = 3P/(2 pi a^2)
@@ -70,15 +95,8 @@ def hertz_sphere_on_flat() -> list[Check]:
 
 def rigid_flat_punch() -> list[Check]:
     """Numerically rigid cylindrical punch (a = 1 mm, 10^4 x stiffer) on a steel block of 40 a."""
-    a, Lb, h, P = 1.0, 40.0, 0.025, 1000.0
-    block = graded(0.0, 1.5, Lb, h)
-    s = BlockSection().add_block("low", block, -block[::-1])
-    s.add_block("punch", block[block <= a + 1e-12], np.linspace(0.0, 0.5, 11))
-    top = s.faces["low_top"]
-    s.faces["low_top_centre"] = top[:, s.points[0, top].max(axis=0) <= a + 1e-12]
-    pair = s.pair("punch", "punch_bottom", "low_top_centre", (0.0, -1.0))
-    model = s.model([STEEL_E, 1e4 * STEEL_E], [STEEL_NU, STEEL_NU], [False, True], supports=[RIGID_BASE],
-                    loads=[FaceLoad("punch_top", -P)], contacts=[pair])
+    a, P = 1.0, 1000.0
+    s, model = punch_model(a, P)
     res = solve(model)
     # the free surface sinks by (2 delta/pi) asin(a/r), so the settlement of the punch relative
     # to the surface at r1 = 2a is delta (1 - (2/pi) asin(a/r1)): local, free of bulk compliance

@@ -11,15 +11,25 @@ STEEL_E, STEEL_NU = 210000.0, 0.3       # MPa, -; any linear material serves, st
 LAME_SOURCE = "Timoshenko & Goodier, Theory of Elasticity 1970, §28 (Lamé)"
 
 
-def lame_cylinder() -> list[Check]:
-    """Plane-strain thick cylinder (a = 10 mm, b = 20 mm) under 100 MPa internal pressure, P2."""
-    a, b, p = 10.0, 20.0, 100.0
+LAME_BORE, LAME_OUTER, LAME_PRESSURE = 10.0, 20.0, 100.0        # mm, mm, MPa
+
+
+def lame_model(order: int = 2):
+    """Thick steel cylinder under internal pressure, ends held axially (plane strain): (blocks, FeModel)."""
+    a, b = LAME_BORE, LAME_OUTER
     s = BlockSection().add_block("cyl", graded(a, a + 1.0, b, 0.125, growth=1.15), np.linspace(0.0, 2.0, 5))
     # both ends held axially, free radially: eps_zz = 0, the plane-strain cylinder of the closed form
     supports = [SpringSupport("cyl_bottom", axial_stiffness=None, radial_stiffness=0.0),
                 SpringSupport("cyl_top", axial_stiffness=None, radial_stiffness=0.0)]
-    model = s.model([STEEL_E], [STEEL_NU], [False], supports=supports, loads=[FacePressure("cyl_inner", p)],
-                    element_order=2)
+    model = s.model([STEEL_E], [STEEL_NU], [False], supports=supports,
+                    loads=[FacePressure("cyl_inner", LAME_PRESSURE)], element_order=order)
+    return s, model
+
+
+def lame_cylinder() -> list[Check]:
+    """Plane-strain thick cylinder (a = 10 mm, b = 20 mm) under 100 MPa internal pressure, P2."""
+    a, b, p = LAME_BORE, LAME_OUTER, LAME_PRESSURE
+    s, model = lame_model(2)
     res = solve(model)
     r = s.points[0]
     # sigma_r = A - B/r^2, sigma_t = A + B/r^2, A = p a^2/(b^2-a^2), B = p a^2 b^2/(b^2-a^2),

@@ -7,7 +7,6 @@ those and the demo cases the time of one extra tilt value reusing the condensed 
 (target: milliseconds), cold and warm-started from the previous tilt.  Ratios from one run;
 no asserts.
 """
-import copy
 import sys
 import time
 from pathlib import Path
@@ -15,9 +14,8 @@ from pathlib import Path
 import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
-sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "fem"))
-from conftest import CONE  # noqa: E402
 from test_harmonic import lined_blocks  # noqa: E402
+from test_tilt import coarse_stiff_cone  # noqa: E402
 
 from clutchfe.fem.solid3d import Solid3d  # noqa: E402
 from clutchfe.fem.tilted import TiltedContactSolver  # noqa: E402
@@ -86,16 +84,7 @@ def demo(name, tilt=None):
 def main():
     compare("lined plate (stiff pressed block)", lined_blocks(E_steel=2e5, order=1, nu_lining=0.25, E_top=2e8,
                                                              elements=5), "top", 0.05, (32, 64))
-    from clutchfe.case import case_from_dict
-    from clutchfe.geometry import mesh_section
-    from clutchfe.pipeline import fe_model_of, section_of
-    data = copy.deepcopy(CONE)
-    data["cone"] = {"youngs_modulus": 2e8}
-    data["mesh"] = {"element_order": 1, "interface_element_size": 2.5, "edge_element_size": 1.25,
-                    "element_size": 7.5, "lining_layers": 1}
-    case = case_from_dict(data)
-    section = section_of(case)
-    model = fe_model_of(case, section, mesh_section(section, order=1))
+    model, _ = coarse_stiff_cone()
     compare("coarse test cone (stiff inner cone)", model, "cone", 0.06, (32, 48))
     demo("cone_capstan_tilted.toml")
     demo("plate_tractor.toml", tilt=0.05)

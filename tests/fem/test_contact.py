@@ -1,18 +1,14 @@
 """Unilateral contact against closed forms and the contact conditions themselves."""
 import numpy as np
 import pytest
-from fem_meshes import Section, graded
-from scipy.integrate import quad
+from fem_meshes import Section
 
 from clutchfe.fem import ContactError, FaceLoad, RingLoad, SpringSupport, solve
+from clutchfe.verification.contact import (HERTZ_DEPTH, HERTZ_H, HERTZ_R, axis_settlement_half_space,
+                                          e_star, hertz_model, punch_model)
 
 E, NU = 210000.0, 0.3
 RIGID_BASE = SpringSupport("low_bottom", axial_stiffness=None, radial_stiffness=0.0)
-
-
-def e_star(E1, nu1, E2, nu2):
-    # 1/E* = (1-nu1^2)/E1 + (1-nu2^2)/E2  (Johnson, Contact Mechanics 1985, §4.2)
-    return 1.0 / ((1 - nu1**2) / E1 + (1 - nu2**2) / E2)
 
 
 # ---------------------------------------------------------------- Hertz ----
@@ -20,43 +16,20 @@ def e_star(E1, nu1, E2, nu2):
 # about (a/L)^2, but they add a bulk compliance of order a/L to the rigid
 # translation.  So the approach is read locally, between axis points one
 # contact radius deep in each block, and compared with the half-space value.
-R, A_TARGET, L, H, DEPTH = 100.0, 1.0, 40.0, 0.05, 1.0
+R, H, DEPTH = HERTZ_R, HERTZ_H, HERTZ_DEPTH
 
 
 @pytest.fixture(scope="module")
 def hertz():
-    Es = e_star(E, NU, E, NU)
-    P = 4 * Es * A_TARGET**3 / (3 * R)
-    r = graded(0.0, 1.5, L, H)
-    s = Section().add_block("low", r, -r[::-1]).add_block("up", r, r)
-    pair = s.pair("hertz", "low_top", "up_bottom", (0.0, 1.0))
-    # curved gap r^2/2R of sphere on flat (Johnson 1985 §4.2), given as a
-    # function so the P2 midpoints see the parabola, not its chord
-    pair.initial_gap_function = lambda rr, zz: rr**2 / (2 * R)
-    model = s.model([E, E], [NU, NU], [False, True], supports=[RIGID_BASE],
-                    loads=[FaceLoad("up_top", -P)], contacts=[pair])
+    # the verify suite's Hertz blocks (clutchfe/verification/contact.py), checked here in more detail
+    s, model, P, Es = hertz_model()
     return s, solve(model), P, Es
-
-
-def axis_displacement_half_space(depth, p0, a, E, nu):
-    """Axial displacement at `depth` on the axis below Hertz pressure, by
-    integrating eps_z = (s_z - 2 nu s_r)/E from depth to infinity with the
-    axis stresses s_z = -p0/(1+x^2), s_r = p0(-(1+nu)(1 - x atan(1/x)) +
-    1/(2(1+x^2))), x = z/a (Johnson 1985 §3.4, from memory; checked below
-    against the surface value)."""
-    def eps(z):
-        x = z / a
-        sz = -p0 / (1 + x * x)
-        sr = p0 * (-(1 + nu) * (1 - x * np.arctan(1 / x)) + 0.5 / (1 + x * x)) if x > 0 else \
-            -p0 * (1 + 2 * nu) / 2
-        return (sz - 2 * nu * sr) / E
-    return -quad(eps, depth, np.inf, limit=200)[0]
 
 
 def test_hertz_reference_is_consistent():
     # surface centre of one body: (1-nu^2) pi p0 a / (2E)  (Johnson 1985 §3.4)
     p0, a = 700.0, 1.0
-    w0 = axis_displacement_half_space(0.0, p0, a, E, NU)
+    w0 = axis_settlement_half_space(0.0, p0, a, E, NU)
     assert w0 == pytest.approx((1 - NU**2) * np.pi * p0 * a / (2 * E), rel=1e-6)
 
 
@@ -83,7 +56,7 @@ def test_hertz_approach(hertz):
     a = (3 * P * R / (4 * Es)) ** (1 / 3)
     p0 = 3 * P / (2 * np.pi * a**2)
     delta = a**2 / R            # Johnson 1985 §4.2
-    local = delta - 2 * axis_displacement_half_space(DEPTH, p0, a, E, NU)
+    local = delta - 2 * axis_settlement_half_space(DEPTH, p0, a, E, NU)
     low, up = s.vertex_at(0.0, -DEPTH), s.vertex_at(0.0, DEPTH)
     fe = res.displacement[1, low] - res.displacement[1, up]
     assert fe == pytest.approx(local, rel=2e-2)
@@ -104,17 +77,8 @@ def test_hertz_contact_conditions(hertz):
 
 # ------------------------------------------------------------ flat punch ----
 def test_rigid_flat_punch_stiffness():
-    a, Lb, h = 1.0, 40.0, 0.025
-    r_block = graded(0.0, 1.5, Lb, h)
-    z_block = graded(0.0, 1.5, Lb, h)
-    s = Section().add_block("low", r_block, -z_block[::-1])
-    s.add_block("punch", r_block[r_block <= a + 1e-12], np.linspace(0.0, 0.5, 11))
-    top = s.faces["low_top"]
-    s.faces["low_top_centre"] = top[:, s.points[0, top].max(axis=0) <= a + 1e-12]
-    pair = s.pair("punch", "punch_bottom", "low_top_centre", (0.0, -1.0))
-    P = 1000.0
-    model = s.model([E, 1e4 * E], [NU, NU], [False, True], supports=[RIGID_BASE],
-                    loads=[FaceLoad("punch_top", -P)], contacts=[pair])
+    a, P = 1.0, 1000.0
+    s, model = punch_model(a, P)
     res = solve(model)
     # surface outside the punch sinks by (2 delta/pi) asin(a/r) (Johnson 1985
     # §3.8; Sneddon 1965), so the punch-to-surface settlement at r1 = 2a is

@@ -3,21 +3,16 @@ import numpy as np
 import pytest
 from fem_meshes import Section, graded
 
-from clutchfe.fem import FaceLoad, FacePressure, SpringSupport, solve
+from clutchfe.fem import FaceLoad, SpringSupport, solve
+from clutchfe.verification.solids import LAME_BORE, LAME_OUTER, LAME_PRESSURE, lame_model
 
 E, NU = 210000.0, 0.3
 
 
 def lame_cylinder(order):
-    a, b, p = 10.0, 20.0, 100.0
-    r = graded(a, a + 1.0, b, 0.125, growth=1.15)
-    s = Section().add_block("cyl", r, np.linspace(0.0, 2.0, 5))
-    # both ends held axially and free radially: eps_zz = 0, the plane-strain case
-    supports = [SpringSupport("cyl_bottom", axial_stiffness=None, radial_stiffness=0.0),
-                SpringSupport("cyl_top", axial_stiffness=None, radial_stiffness=0.0)]
-    model = s.model([E], [NU], [False], supports=supports,
-                    loads=[FacePressure("cyl_inner", p)], element_order=order)
-    return s, model, (a, b, p)
+    # the verify suite's cylinder (clutchfe/verification/solids.py), checked here in more detail
+    s, model = lame_model(order)
+    return s, model, (LAME_BORE, LAME_OUTER, LAME_PRESSURE)
 
 
 @pytest.mark.parametrize("order", [2, 1])
