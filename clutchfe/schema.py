@@ -55,6 +55,12 @@ def _r(x, nd=2):
 CONE = ("cone",)
 PLATE = ("plate",)
 
+
+def _material(what: str, modulus: float, poisson: float, kinds: tuple) -> dict:
+    """Young's modulus and Poisson's ratio of one body: the same two keys in every body table."""
+    return {"youngs_modulus": Key("MPa", what, default=modulus, low=0.0, kinds=kinds),
+            "poissons_ratio": Key("", what, default=poisson, low=-1.0, high=0.5, kinds=kinds)}
+
 SCHEMA: dict[str, dict[str, Key]] = {
     "": {
         "kind": Key("", "case kind: a cone clutch or a (single or multi) plate clutch", str,
@@ -96,8 +102,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
                                   "optional, compared with the peak pressure", low=0.0),
     },
     "cone": {
-        "youngs_modulus": Key("MPa", "inner (male) cone material", default=STEEL_E, low=0.0, kinds=CONE),
-        "poissons_ratio": Key("", "inner cone material", default=STEEL_NU, low=-1.0, high=0.5, kinds=CONE),
+        **_material("inner (male) cone material", STEEL_E, STEEL_NU, CONE),
         "rim_thickness": Key("mm", "conical rim under the lining, measured normal to the face",
                              default=lambda c: _r(0.1 * _r2(c)), low=0.0, kinds=CONE),
         "web_thickness": Key("mm", "axial thickness of the web joining rim and hub (at the wide end)",
@@ -110,8 +115,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
                           default=lambda c: _r(0.6 * _cone_height(c) + 0.12 * _r2(c)), low=0.0, kinds=CONE),
     },
     "cup": {
-        "youngs_modulus": Key("MPa", "outer cup material", default=CAST_IRON_E, low=0.0, kinds=CONE),
-        "poissons_ratio": Key("", "outer cup material", default=CAST_IRON_NU, low=-1.0, high=0.5, kinds=CONE),
+        **_material("outer cup material", CAST_IRON_E, CAST_IRON_NU, CONE),
         "wall_thickness": Key("mm", "conical wall of the cup, measured normal to the face",
                               default=lambda c: _r(0.12 * _r2(c)), low=0.0, kinds=CONE),
         "face_overrun": Key("mm", "axial length the cup face runs on past the narrow end of the lining "
@@ -127,9 +131,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
                           default=lambda c: _r(0.4 * _r1(c)), low=0.0, kinds=CONE),
     },
     "pressure_plate": {
-        "youngs_modulus": Key("MPa", "pressure plate material", default=CAST_IRON_E, low=0.0, kinds=PLATE),
-        "poissons_ratio": Key("", "pressure plate material", default=CAST_IRON_NU, low=-1.0, high=0.5,
-                              kinds=PLATE),
+        **_material("pressure plate material", CAST_IRON_E, CAST_IRON_NU, PLATE),
         "thickness": Key("mm", "axial thickness", default=lambda c: _r(0.12 * _r2(c)), low=0.0, kinds=PLATE),
         "inner_radius": Key("mm", "inner radius", default=lambda c: _r(_r1(c) - 0.05 * _w(c)), low=0.0,
                             kinds=PLATE),
@@ -137,9 +139,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
                             kinds=PLATE),
     },
     "disc": {
-        "youngs_modulus": Key("MPa", "friction disc core material", default=STEEL_E, low=0.0, kinds=PLATE),
-        "poissons_ratio": Key("", "friction disc core material", default=STEEL_NU, low=-1.0, high=0.5,
-                              kinds=PLATE),
+        **_material("friction disc core material", STEEL_E, STEEL_NU, PLATE),
         "core_thickness": Key("mm", "axial thickness of the steel core", default=lambda c: _r(0.025 * _r2(c)),
                               low=0.0, kinds=PLATE),
         "core_inner_radius": Key("mm", "inner radius of the core (towards the splined hub)",
@@ -148,10 +148,8 @@ SCHEMA: dict[str, dict[str, Key]] = {
                                  kinds=PLATE),
     },
     "counter_plate": {
-        "youngs_modulus": Key("MPa", "counter plate (flywheel side, or the end plate of a pack)",
-                              default=CAST_IRON_E, low=0.0, kinds=PLATE),
-        "poissons_ratio": Key("", "counter plate material", default=CAST_IRON_NU, low=-1.0, high=0.5,
-                              kinds=PLATE),
+        **_material("counter plate (flywheel side, or the end plate of a pack)", CAST_IRON_E, CAST_IRON_NU,
+                    PLATE),
         "thickness": Key("mm", "axial thickness", default=lambda c: _r(0.15 * _r2(c)), low=0.0, kinds=PLATE),
         "inner_radius": Key("mm", "inner radius (bore)", default=lambda c: _r(0.3 * _r1(c)), low=0.0,
                             kinds=PLATE),
@@ -159,10 +157,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
                             kinds=PLATE),
     },
     "separator_plate": {
-        "youngs_modulus": Key("MPa", "separator plates between the discs of a pack", default=STEEL_E,
-                              low=0.0, kinds=PLATE),
-        "poissons_ratio": Key("", "separator plate material", default=STEEL_NU, low=-1.0, high=0.5,
-                              kinds=PLATE),
+        **_material("separator plates between the discs of a pack", STEEL_E, STEEL_NU, PLATE),
         "thickness": Key("mm", "axial thickness", default=lambda c: _r(0.025 * _r2(c)), low=0.0, kinds=PLATE),
         "inner_radius": Key("mm", "inner radius", default=lambda c: _r(_r1(c) - 0.05 * _w(c)), low=0.0,
                             kinds=PLATE),

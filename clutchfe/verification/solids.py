@@ -26,18 +26,22 @@ def lame_model(order: int = 2):
     return s, model
 
 
+def lame_closed_form(r, nu: float = STEEL_NU, E: float = STEEL_E):
+    """Radial displacement, radial and hoop stress of the plane-strain cylinder at radii r:
+    σ_r = A − B/r², σ_θ = A + B/r², A = p a²/(b²−a²), B = p a² b²/(b²−a²),
+    u_r = (1+ν)/E ((1−2ν) A r + B/r)  (Timoshenko & Goodier 1970, §28)."""
+    a, b, p = LAME_BORE, LAME_OUTER, LAME_PRESSURE
+    A = p * a**2 / (b**2 - a**2)
+    B = p * a**2 * b**2 / (b**2 - a**2)
+    return (1 + nu) / E * ((1 - 2 * nu) * A * r + B / r), A - B / r**2, A + B / r**2
+
+
 def lame_cylinder() -> list[Check]:
     """Plane-strain thick cylinder (a = 10 mm, b = 20 mm) under 100 MPa internal pressure, P2."""
-    a, b, p = LAME_BORE, LAME_OUTER, LAME_PRESSURE
     s, model = lame_model(2)
     res = solve(model)
     r = s.points[0]
-    # sigma_r = A - B/r^2, sigma_t = A + B/r^2, A = p a^2/(b^2-a^2), B = p a^2 b^2/(b^2-a^2),
-    # u_r = (1+nu)/E ((1-2nu) A r + B/r) in plane strain
-    A = p * a**2 / (b**2 - a**2)
-    B = p * a**2 * b**2 / (b**2 - a**2)
-    u_exact = (1 + STEEL_NU) / STEEL_E * ((1 - 2 * STEEL_NU) * A * r + B / r)
-    hoop_exact = A + B / r**2
+    u_exact, _, hoop_exact = lame_closed_form(r)
     bore = np.argmin(r)
     worst_u = int(np.argmax(np.abs(res.displacement[0] / u_exact - 1)))
     worst_hoop = int(np.argmax(np.abs(res.stress["tt"] / hoop_exact - 1)))

@@ -4,7 +4,7 @@ import pytest
 from fem_meshes import Section, graded
 
 from clutchfe.fem import FaceLoad, SpringSupport, solve
-from clutchfe.verification.solids import LAME_BORE, LAME_OUTER, LAME_PRESSURE, lame_model
+from clutchfe.verification.solids import LAME_BORE, LAME_OUTER, LAME_PRESSURE, lame_closed_form, lame_model
 
 E, NU = 210000.0, 0.3
 
@@ -28,6 +28,7 @@ def test_lame_thick_cylinder_plane_strain(order):
     B = p * a**2 * b**2 / (b**2 - a**2)
     u_exact = (1 + NU) / E * ((1 - 2 * NU) * A * r + B / r)
     hoop_exact = A + B / r**2
+    assert np.allclose(lame_closed_form(r)[0], u_exact, rtol=1e-12)     # the verify suite's reference
     assert np.max(np.abs(res.displacement[0] / u_exact - 1)) < 5e-3
     # no axial motion in plane strain, up to discretisation error
     assert np.max(np.abs(res.displacement[1])) < 1e-3 * np.max(np.abs(u_exact))
