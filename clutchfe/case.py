@@ -13,15 +13,9 @@ from dataclasses import dataclass, make_dataclass, field
 from pathlib import Path
 from typing import Any
 
+from .errors import CaseError
+from .results import label_problem, safe_label
 from .schema import SCHEMA, Key, describe_range
-
-
-class CaseError(Exception):
-    """Invalid input: ``problems`` holds one message per problem."""
-
-    def __init__(self, problems: list[str]):
-        super().__init__("\n".join(problems))
-        self.problems = problems
 
 
 def _table_class(table: str):
@@ -87,7 +81,7 @@ def load_case(path: str | Path) -> Case:
         raise CaseError([f"{path}: not a UTF-8 text file"]) from None
     except tomllib.TOMLDecodeError as exc:
         raise CaseError([f"{path}: malformed TOML: {exc}"]) from None
-    return case_from_dict(data, default_name=path.stem, sha256=hashlib.sha256(raw).hexdigest(),
+    return case_from_dict(data, default_name=safe_label(path.stem), sha256=hashlib.sha256(raw).hexdigest(),
                           source=str(path))
 
 
@@ -108,9 +102,13 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
         raise CaseError(problems)
     given = frozenset(k for k, v in data.items() if isinstance(v, dict))
     warnings = _cross_checks(values, kind, problems, given)
+    name = values["name"] if "name" in values else default_name
+    # the name becomes the results folder: a case file must not be able to point it elsewhere
+    bad_name = label_problem("name", name)
+    if bad_name:
+        problems.append(bad_name)
     if problems:
         raise CaseError(problems)
-    name = values.get("name") or default_name
     tables = {t: cls(**{k: values.get(f"{t}.{k}") for k in SCHEMA[t]}) for t, cls in _TABLE_CLASSES.items()}
     return Case(kind=kind, name=name, description=values.get("description") or "", input_sha256=sha256,
                 source=source, warnings=tuple(warnings), tables_given=given, **tables)

@@ -12,9 +12,9 @@ from pathlib import Path
 
 from rich.console import Console
 
-from .case import CaseError, load_case
-
-EXIT_OK, EXIT_BUG, EXIT_INPUT, EXIT_PHYSICS = 0, 1, 2, 3
+from .case import load_case
+from .errors import EXIT_BUG, EXIT_INPUT, EXIT_INTERRUPTED, EXIT_OK, CaseError, PhysicsError
+from .results import check_output_folder
 
 err = Console(stderr=True, highlight=False, soft_wrap=True)
 out = Console(highlight=False)
@@ -62,12 +62,11 @@ def main(argv: list[str] | None = None) -> int:
                       "continue", markup=False)
         else:
             err.print("clutchfe: interrupted; nothing was written", markup=False)
-        return 130
+        return EXIT_INTERRUPTED
+    except PhysicsError as exc:
+        err.print(f"clutchfe: cannot solve: {exc}", markup=False)
+        return exc.exit_status
     except Exception as exc:  # noqa: BLE001 - the last line of defence: no traceback for users
-        from .pipeline import PhysicsError
-        if isinstance(exc, PhysicsError):
-            err.print(f"clutchfe: cannot solve: {exc}", markup=False)
-            return EXIT_PHYSICS
         if os.environ.get("CLUTCHFE_DEBUG"):
             raise
         err.print(f"clutchfe: internal error (a bug, please report it with the case file): "
@@ -99,6 +98,7 @@ def _dispatch(args) -> int:
         pipeline.print_check(case, section, out)
         return EXIT_OK
     folder = args.out or Path("results") / case.name
+    check_output_folder(folder)     # before any work: never a long solve that cannot be written
     if args.command == "mesh":
         pipeline.mesh_case(case, section, folder, out)
         return EXIT_OK

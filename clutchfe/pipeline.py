@@ -10,14 +10,11 @@ from pathlib import Path
 from rich.table import Table
 
 from .case import Case, CaseError
+from .errors import PhysicsError
 from .results import atomic_folder, versions, write_json
 
 CAUTION = ("Clutches can hurt people when they slip or burst. These results support, and never replace, "
            "the applicable codes, the manufacturer's data and the judgement of a licensed engineer.")
-
-
-class PhysicsError(RuntimeError):
-    """The case is valid input but cannot be solved as asked (exit 3)."""
 
 
 def section_of(case: Case):
@@ -45,7 +42,7 @@ def print_check(case: Case, section, console) -> None:
 def mesh_case(case: Case, section, folder: Path, console) -> None:
     from .geometry import mesh_section, section_picture, write_mesh
     mesh = mesh_section(section, order=case.mesh.element_order)
-    with atomic_folder(folder) as tmp:
+    with atomic_folder(folder, kind="mesh") as tmp:
         write_mesh(mesh, tmp / "mesh.vtu")
         section_picture(section, mesh, tmp / "section.png",
                         title=f"{case.name}: {len(mesh.triangles)} triangles (order {mesh.order}), "

@@ -1,38 +1,183 @@
-"""Writing a results folder all at once: a failed run leaves no half-written folder."""
+"""Writing a results folder all at once, and never over somebody else's files.
+
+A run writes into a scratch folder beside the results folder and replaces the results
+folder in one rename at the end, so a failed or killed run leaves the previous complete
+results (or none), never a half-written folder.  clutchfe only ever replaces a folder
+that is new, empty, or one it wrote itself: every results folder carries a marker file
+listing what clutchfe put there, and a folder holding anything else is refused (exit 2)
+rather than deleted.  Two runs to one folder cannot interleave: the second is refused
+while the first holds the folder's lock.  Scratch folders of killed runs are removed by
+the next run that writes beside them.
+"""
 from __future__ import annotations
 
 import contextlib
+import fcntl
+import fnmatch
 import json
 import math
 import os
 import platform
+import re
 import shutil
 import tempfile
 from pathlib import Path
 
+from .errors import OutputFolderError
+
+MARKER = ".clutchfe-results.json"
+# a label becomes a folder name: letters, digits, '_', '-', '.', '+', single inner spaces;
+# it must start with a letter or digit (so never '.', '..' or a hidden name) and stay short
+LABEL_PATTERN = re.compile(r"[^\W_][\w.+-]*(?: [\w.+-]+)*")
+LABEL_MAX = 80
+LABEL_RULE = ("a plain file-name label of 1 to 80 letters, digits, '_', '-', '.', '+' or single spaces, "
+              "starting with a letter or digit")
+_SCRATCH = re.compile(r"^\.(?P<name>.+)\.(?:writing|old)-(?P<pid>\d+)-[^/]*$")
+
+
+def label_problem(key: str, value) -> str | None:
+    """The problem with ``value`` as a results-folder label, or None when it is fine."""
+    if isinstance(value, str) and len(value) <= LABEL_MAX and LABEL_PATTERN.fullmatch(value):
+        return None
+    shown = repr(value) if not isinstance(value, str) or len(value) <= 60 else repr(value[:57]) + "…"
+    return f"{key} = {shown}: not usable as a results-folder name; allowed: {LABEL_RULE}"
+
+
+def safe_label(text: str, fallback: str = "case") -> str:
+    """``text`` made into a valid label (for defaults taken from a file name)."""
+    cleaned = re.sub(r"[^\w.+-]+", "_", text).strip("._-+")[:LABEL_MAX].strip("._-+")
+    return cleaned if cleaned and LABEL_PATTERN.fullmatch(cleaned) else fallback
+
+
+def check_output_folder(folder: str | Path) -> None:
+    """Refuse (OutputFolderError) a folder clutchfe may not replace.
+
+    Allowed: a path that does not exist yet, an empty folder, or a folder clutchfe wrote
+    (its marker lists every entry in it).  Refused: a file, a symbolic link, the current
+    folder or one that contains it, and a folder holding anything clutchfe did not write.
+    """
+    folder = Path(folder)
+    where = f"output folder {str(folder)!r}"
+    if folder.is_symlink():
+        raise OutputFolderError([f"{where}: is a symbolic link; give the folder it points to, or a new folder"])
+    if not folder.exists():
+        return
+    if not folder.is_dir():
+        raise OutputFolderError([f"{where}: is a file, not a folder; clutchfe will not replace it. "
+                                 "Give a new folder name (or an empty folder)"])
+    here = Path.cwd().resolve()
+    real = folder.resolve()
+    if real == here or real in here.parents:
+        raise OutputFolderError([f"{where}: is the current folder or contains it; give a folder of its own "
+                                 "for the results (e.g. results/<case name>)"])
+    entries = sorted(p.name for p in folder.iterdir())
+    if not entries:
+        return
+    written = _marked_entries(folder)
+    if written is None:
+        raise OutputFolderError([f"{where}: holds files clutchfe did not write ({_listing(entries)}); clutchfe "
+                                 "replaces only new, empty or clutchfe results folders. Give another folder"])
+    foreign = [e for e in entries if e != MARKER and not any(fnmatch.fnmatchcase(e, w) for w in written)]
+    if foreign:
+        raise OutputFolderError([f"{where}: is a clutchfe results folder, but somebody added "
+                                 f"{_listing(foreign)}; move those out first or give another folder"])
+
+
+def _listing(names: list[str], most: int = 4) -> str:
+    shown = ", ".join(repr(n) for n in names[:most])
+    return shown + (f" and {len(names) - most} more" if len(names) > most else "")
+
+
+def _marked_entries(folder: Path) -> set[str] | None:
+    try:
+        data = json.loads((folder / MARKER).read_text(encoding="utf-8"))
+    except (OSError, ValueError):
+        return None
+    if not isinstance(data, dict) or data.get("written_by") != "clutchfe" or not isinstance(data.get("entries"), list):
+        return None
+    return {str(e) for e in data["entries"]}
+
+
+def write_marker(folder: Path, kind: str, extra: tuple[str, ...] = ()) -> None:
+    """Mark ``folder`` as clutchfe's, listing every entry in it, plus ``extra`` names or
+    shell patterns of files still to come (a study's database journal, say)."""
+    entries = sorted({p.name for p in folder.iterdir() if p.name != MARKER} | set(extra))
+    (folder / MARKER).write_text(json.dumps({"written_by": "clutchfe", "kind": kind, "entries": entries},
+                                            indent=1) + "\n", encoding="utf-8")
+
 
 @contextlib.contextmanager
-def atomic_folder(final: str | Path):
+def folder_lock(folder: Path):
+    """Hold the lock of ``folder`` (a hidden lock file beside it); refuse when another run has it."""
+    folder = Path(folder)
+    folder.parent.mkdir(parents=True, exist_ok=True)
+    path = folder.parent / f".{folder.name}.lock"
+    with open(path, "a+") as fh:
+        try:
+            fcntl.flock(fh, fcntl.LOCK_EX | fcntl.LOCK_NB)
+        except BlockingIOError:
+            raise OutputFolderError([f"output folder {str(folder)!r}: another clutchfe run is writing it now; "
+                                     "wait for that run to finish or give another folder"]) from None
+        try:
+            yield
+        finally:
+            fcntl.flock(fh, fcntl.LOCK_UN)
+
+
+def _alive(pid: int) -> bool:
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except PermissionError:
+        return True
+    return True
+
+
+def clean_stale_scratch(parent: Path, name: str) -> list[str]:
+    """Remove scratch folders of killed runs beside ``parent/name`` (the caller holds its lock)."""
+    removed = []
+    if not parent.is_dir():
+        return removed
+    for entry in parent.iterdir():
+        m = _SCRATCH.match(entry.name)
+        if m is None or m["name"] != name or not entry.is_dir() or entry.is_symlink():
+            continue
+        if int(m["pid"]) == os.getpid() or _alive(int(m["pid"])):
+            continue
+        shutil.rmtree(entry, ignore_errors=True)
+        removed.append(entry.name)
+    return removed
+
+
+@contextlib.contextmanager
+def atomic_folder(final: str | Path, kind: str = "run"):
     """Yield a scratch folder beside ``final``; on success it replaces ``final`` in one rename.
 
-    On any exception the scratch folder is removed and ``final`` is left as it was.
+    ``final`` must pass :func:`check_output_folder` (checked before and again just before the
+    replacement, under the folder's lock).  On any exception the scratch folder is removed
+    and ``final`` is left as it was.
     """
     final = Path(final)
-    final.parent.mkdir(parents=True, exist_ok=True)
-    scratch = Path(tempfile.mkdtemp(prefix=f".{final.name}.writing-", dir=final.parent))
-    try:
-        yield scratch
-    except BaseException:
-        shutil.rmtree(scratch, ignore_errors=True)
-        raise
-    old = None
-    if final.exists():
-        old = final.parent / f".{final.name}.old-{os.getpid()}"
-        os.replace(final, old)
-    os.replace(scratch, final)
-    os.chmod(final, 0o755)
-    if old is not None:
-        shutil.rmtree(old, ignore_errors=True)
+    check_output_folder(final)
+    with folder_lock(final):
+        clean_stale_scratch(final.parent, final.name)
+        scratch = Path(tempfile.mkdtemp(prefix=f".{final.name}.writing-{os.getpid()}-", dir=final.parent))
+        try:
+            yield scratch
+            write_marker(scratch, kind)
+            check_output_folder(final)
+        except BaseException:
+            shutil.rmtree(scratch, ignore_errors=True)
+            raise
+        old = None
+        if final.exists():
+            old = Path(tempfile.mkdtemp(prefix=f".{final.name}.old-{os.getpid()}-", dir=final.parent))
+            os.replace(final, old / "previous")
+        os.replace(scratch, final)
+        os.chmod(final, 0o755)
+        if old is not None:
+            shutil.rmtree(old, ignore_errors=True)
 
 
 def clean_json(value):

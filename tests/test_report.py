@@ -1,6 +1,7 @@
 """report.html of the cone demo in headless Chromium: renders cleanly, every picture loads, and every
 number on the page is the number in summary.json.  The mesh study and the escaping of user text."""
 import copy
+import dataclasses
 import json
 import math
 import re
@@ -11,6 +12,7 @@ import pytest
 from rich.console import Console
 
 from clutchfe import pipeline
+from clutchfe.errors import CaseError
 from clutchfe.case import case_from_dict, load_case
 from clutchfe.report import add_report_to_run
 
@@ -155,9 +157,13 @@ HOSTILE_TEXT = "<script>document.title='owned'</script> bore < 40 mm & > 20 mm"
 
 def test_user_text_is_escaped_and_mesh_study_can_be_off(tmp_path, browser, monkeypatch):
     data = copy.deepcopy(CONE)
-    data.update(name=HOSTILE_NAME, description=HOSTILE_TEXT, verification={"mesh_study": False})
+    data.update(description=HOSTILE_TEXT, verification={"mesh_study": False})
+    with pytest.raises(CaseError):                      # a case file cannot give such a name …
+        case_from_dict({**data, "name": HOSTILE_NAME})
+    # … but the report escapes the name all the same (defence in depth)
+    case = dataclasses.replace(case_from_dict(data), name=HOSTILE_NAME)
     folder = tmp_path / "hostile"
-    summary = _run(case_from_dict(data), folder, monkeypatch)
+    summary = _run(case, folder, monkeypatch)
     assert summary["mesh_study"]["skipped"].startswith("switched off")
     page = (folder / "report.html").read_text(encoding="utf-8")
     assert "<script" not in page and "<img src=x" not in page

@@ -20,6 +20,7 @@ from rich.console import Console
 from rich.progress import BarColumn, Progress, TextColumn, TimeElapsedColumn
 
 from ..case import CaseError
+from ..results import check_output_folder, folder_lock, write_marker
 from .evaluate import failure_reason, group_key, sample_case, solve_chunk
 from .limits import find_limit
 from .sampling import plan
@@ -27,6 +28,9 @@ from .spec import Study, load_study
 from .store import SampleStore
 
 STORE_NAME = "samples.sqlite"
+# what a study folder may hold besides the files it lists: the database and its journal,
+# and the scratch copy of a file being replaced when a run was killed
+STUDY_ENTRIES = (STORE_NAME + "*", ".*.writing-*")
 # Per sample chunk: small enough that a lost worker costs little and the bar moves,
 # large enough that scheduling overhead stays below the ~5 ms contact solve.
 MAX_CHUNK = 40
@@ -44,19 +48,27 @@ def run_study(path, workers: int | None = None, scheduler: str | None = None, co
     folder = Path(out) if out is not None else Path("results") / study.name
     samples = plan(study)
     inputs = dict(samples)
-    store = SampleStore(folder / STORE_NAME, fingerprint(study, samples), len(samples))
-    t0 = time.perf_counter()
-    try:
-        finished = store.finished_ids()
-        jobs, invalid = _classify(study, [(i, ov) for i, ov in samples if i not in finished])
-        store.add(invalid, inputs)
-        run = {"resumed_with": len(finished), "invalid_inputs": len(invalid)}
-        if jobs or (study.limit and store.meta("limit") is None):
-            run.update(_dispatch(study, jobs, inputs, store, workers, scheduler, console))
-        run["seconds"] = time.perf_counter() - t0
-        return write_results(folder, study, store, run, console)
-    finally:
-        store.close()
+    # a study folder grows sample by sample (that is what makes a restart cheap), so it is
+    # not replaced whole: it must be new, empty or a clutchfe study folder, and is marked at once
+    check_output_folder(folder)
+    with folder_lock(folder):
+        folder.mkdir(parents=True, exist_ok=True)
+        write_marker(folder, "study", extra=STUDY_ENTRIES)
+        store = SampleStore(folder / STORE_NAME, fingerprint(study, samples), len(samples))
+        t0 = time.perf_counter()
+        try:
+            finished = store.finished_ids()
+            jobs, invalid = _classify(study, [(i, ov) for i, ov in samples if i not in finished])
+            store.add(invalid, inputs)
+            run = {"resumed_with": len(finished), "invalid_inputs": len(invalid)}
+            if jobs or (study.limit and store.meta("limit") is None):
+                run.update(_dispatch(study, jobs, inputs, store, workers, scheduler, console))
+            run["seconds"] = time.perf_counter() - t0
+            summary = write_results(folder, study, store, run, console)
+        finally:
+            store.close()
+        write_marker(folder, "study", extra=STUDY_ENTRIES)
+        return summary
 
 
 def fingerprint(study: Study, samples: list) -> str:

@@ -14,6 +14,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..case import Case, CaseError, load_case
+from ..results import label_problem, safe_label
 from ..schema import SCHEMA, Key, describe_range
 
 DISTRIBUTIONS = {                       # distribution -> its parameters
@@ -135,9 +136,10 @@ def study_from_dict(data: dict, path: Path, sha256: str = "") -> Study:
     method, samples, seed = _sampling(data, any("distribution" in e for e in entries), problems)
     outputs = _outputs(data, problems)
     limit = _limit(data.get("limit"), base_case, problems) if "limit" in data else None
-    name = data.get("name", path.name.removesuffix(".toml").removesuffix(".study"))
-    if not isinstance(name, str) or not name.strip() or any(c in name for c in "/\\"):
-        problems.append(f"name = {name!r}: must be a plain text name (used for the results folder)")
+    name = data.get("name", safe_label(path.name.removesuffix(".toml").removesuffix(".study"), "study"))
+    bad_name = label_problem("name", name)      # the name becomes the results folder
+    if bad_name:
+        problems.append(bad_name)
     grid_points = math.prod(len(g.values) for g in grids) if grids else 1
     if grid_points * samples > MAX_SAMPLES:
         problems.append(f"samples: the plan has {grid_points * samples} samples; allowed: at most {MAX_SAMPLES}")

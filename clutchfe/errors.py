@@ -1,0 +1,53 @@
+"""Every error a user can cause, and the exit status the command line gives it.
+
+One small module (no imports from the rest of the package) so that every stage can
+raise these and the command line maps them to exit codes in one place.
+
+Exit status: 0 ok; 1 a bug (anything not listed here); 2 invalid input, one line per
+problem naming the key, the value and the allowed range; 3 valid input whose physics
+cannot be solved as asked (the reason is given); 130 interrupted.
+"""
+from __future__ import annotations
+
+EXIT_OK = 0
+EXIT_BUG = 1
+EXIT_INPUT = 2
+EXIT_PHYSICS = 3
+EXIT_INTERRUPTED = 130
+
+
+class ClutchfeError(Exception):
+    """Base of the errors a user can cause; ``exit_status`` is what the command returns."""
+
+    exit_status = EXIT_BUG
+
+
+class CaseError(ClutchfeError):
+    """Invalid input: ``problems`` holds one message per problem (key, value, allowed range)."""
+
+    exit_status = EXIT_INPUT
+
+    def __init__(self, problems: list[str]):
+        super().__init__("\n".join(problems))
+        self.problems = list(problems)
+
+
+class OutputFolderError(CaseError):
+    """The chosen results folder cannot be used without destroying something (exit 2)."""
+
+
+class PhysicsError(ClutchfeError):
+    """The case is valid input but cannot be solved as asked (exit 3)."""
+
+    exit_status = EXIT_PHYSICS
+
+
+def exit_status(exc: BaseException) -> int:
+    """The command's exit status for an exception that reached it."""
+    if isinstance(exc, KeyboardInterrupt):
+        return EXIT_INTERRUPTED
+    return getattr(exc, "exit_status", EXIT_BUG) if isinstance(exc, ClutchfeError) else EXIT_BUG
+
+
+__all__ = ["EXIT_BUG", "EXIT_INPUT", "EXIT_INTERRUPTED", "EXIT_OK", "EXIT_PHYSICS", "CaseError",
+           "ClutchfeError", "OutputFolderError", "PhysicsError", "exit_status"]
