@@ -5,6 +5,7 @@ the value and what is allowed; the command line prints them and exits 2.
 """
 from __future__ import annotations
 
+import copy
 import difflib
 import hashlib
 import math
@@ -14,16 +15,27 @@ from pathlib import Path
 from typing import Any
 
 from .errors import CaseError
-from .results import label_problem, safe_label
+from .names import label_problem, safe_label
 from .schema import SCHEMA, Key, describe_range
 
 
 def _table_class(table: str):
-    fields = [(name, Any, field(default=None)) for name in SCHEMA[table]]
-    return make_dataclass(f"{table.title().replace('_', '')}Table", fields, frozen=True)
+    """A frozen dataclass per case table, one field per key typed as the schema types it."""
+    fields = [(name, spec.kind | None, field(default=None)) for name, spec in SCHEMA[table].items()]
+    cls = make_dataclass(f"{table.title().replace('_', '')}Table", fields, frozen=True)
+    cls.__module__ = __name__
+    cls.__doc__ = f"The [{table}] table of a case (keys, units and ranges: clutchfe keys)."
+    return cls
 
 
 _TABLE_CLASSES = {t: _table_class(t) for t in SCHEMA if t}
+InterfaceTable, LoadTable, LiningTable = (_TABLE_CLASSES[t] for t in ("interface", "load", "lining"))
+ConeTable, CupTable = _TABLE_CLASSES["cone"], _TABLE_CLASSES["cup"]
+PressurePlateTable, DiscTable = _TABLE_CLASSES["pressure_plate"], _TABLE_CLASSES["disc"]
+CounterPlateTable, SeparatorPlateTable = _TABLE_CLASSES["counter_plate"], _TABLE_CLASSES["separator_plate"]
+SupportTable, MisalignmentTable = _TABLE_CLASSES["support"], _TABLE_CLASSES["misalignment"]
+RequirementTable, MeshTable = _TABLE_CLASSES["requirement"], _TABLE_CLASSES["mesh"]
+WearTable, VerificationTable = _TABLE_CLASSES["wear"], _TABLE_CLASSES["verification"]
 
 
 @dataclass(frozen=True)
@@ -33,21 +45,21 @@ class Case:
     kind: str
     name: str
     description: str
-    interface: Any
-    load: Any
-    lining: Any
-    cone: Any
-    cup: Any
-    pressure_plate: Any
-    disc: Any
-    counter_plate: Any
-    separator_plate: Any
-    support: Any
-    misalignment: Any
-    requirement: Any
-    mesh: Any
-    wear: Any
-    verification: Any
+    interface: InterfaceTable
+    load: LoadTable
+    lining: LiningTable
+    cone: ConeTable
+    cup: CupTable
+    pressure_plate: PressurePlateTable
+    disc: DiscTable
+    counter_plate: CounterPlateTable
+    separator_plate: SeparatorPlateTable
+    support: SupportTable
+    misalignment: MisalignmentTable
+    requirement: RequirementTable
+    mesh: MeshTable
+    wear: WearTable
+    verification: VerificationTable
     input_sha256: str = ""
     source: str = ""
     warnings: tuple = ()
@@ -69,7 +81,37 @@ class Case:
         return out
 
 
+def with_tables(data: dict, **tables) -> dict:
+    """A deep copy of case data (nested tables) with each named table updated by the given keys."""
+    data = copy.deepcopy(data)
+    for table, values in tables.items():
+        data.setdefault(table, {}).update(values)
+    return data
+
+
 def load_case(path: str | Path) -> Case:
+    """Read, validate and default a case file (TOML).
+
+    Parameters
+    ----------
+    path : str or Path
+        The case file.
+
+    Returns
+    -------
+    Case
+        Every table filled in (defaults included), with the file's SHA-256.
+
+    Raises
+    ------
+    CaseError
+        One message per problem, each naming the key, the value and the allowed range.
+
+    Examples
+    --------
+    >>> from clutchfe import load_case
+    >>> case = load_case("cases/plate_tractor.toml")      # doctest: +SKIP
+    """
     path = Path(path)
     try:
         raw = path.read_bytes()
@@ -86,6 +128,28 @@ def load_case(path: str | Path) -> Case:
 
 
 def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", source: str = "") -> Case:
+    """Validate and default a case given as nested tables (the parsed TOML of a case file).
+
+    Parameters
+    ----------
+    data : dict
+        ``{"kind": ..., "interface": {...}, "load": {...}, ...}`` as in a case file.
+    default_name : str
+        The case name when ``data`` has none (it names the results folder).
+
+    Raises
+    ------
+    CaseError
+        One message per problem (key, value, allowed range).
+
+    Examples
+    --------
+    >>> from clutchfe import case_from_dict
+    >>> case = case_from_dict({"kind": "plate", "interface": {"inner_radius": 80.0, "outer_radius": 120.0,
+    ...     "friction_coefficient": 0.3, "friction_surfaces": 2}, "load": {"axial_force": 4000.0}})
+    >>> case.interface.semi_cone_angle, case.support.type
+    (90.0, 'rigid')
+    """
     problems: list[str] = []
     flat = _flatten(data, problems)
     kind = flat.get("kind")

@@ -11,6 +11,8 @@ import math
 from dataclasses import dataclass
 from typing import Any, Callable
 
+from .readme import write_between_markers
+
 STEEL_E, STEEL_NU = 210000.0, 0.30      # MPa; common practice for carbon steel
 CAST_IRON_E, CAST_IRON_NU = 110000.0, 0.26   # grey cast iron, from memory (90–140 GPa by grade)
 LINING_E, LINING_NU = 400.0, 0.25       # moulded organic facing, from memory (a few hundred MPa)
@@ -289,15 +291,12 @@ def reference_markdown() -> str:
 Default = Callable[[dict], Any]
 
 
+MARKERS = ("<!-- case keys: start -->", "<!-- case keys: end -->")
+
+
 def _update_readme(path="README.md") -> None:
     """Rewrite the key table of the README between its markers: ``python3 -m clutchfe.schema``."""
-    from pathlib import Path
-    readme = Path(path)
-    text = readme.read_text(encoding="utf-8")
-    start, end = "<!-- case keys: start -->", "<!-- case keys: end -->"
-    head, rest = text.split(start)
-    _, tail = rest.split(end)
-    readme.write_text(f"{head}{start}\n{reference_markdown()}\n{end}{tail}", encoding="utf-8")
+    write_between_markers(path, reference_markdown(), MARKERS)
 
 
 if __name__ == "__main__":

@@ -95,12 +95,14 @@ def _ring_vertex(system, body: int, face: str | None, radius: float | None) -> i
 class TiltedContactSolver:
     """Condense harmonics 0 … M/2 once; :meth:`solve` any tilt, offset or load level."""
 
-    def __init__(self, model: FeModel, pressed: str, grid: int = 48):
+    def __init__(self, model: FeModel, pressed: str, grid: int = 48, base: ContactSolver | None = None):
+        """``base``: the axisymmetric solver of the same model, when one is at hand (it is
+        harmonic 0; passing it saves its factorisation)."""
         if grid < 4 or grid % 2:
             raise ValueError(f"the θ grid needs an even number of angles >= 4, got {grid}")
         t0 = time.perf_counter()
         self.timings = {}
-        self.base = base = ContactSolver(model)
+        self.base = base = base if base is not None else ContactSolver(model)
         system = base.system
         self.pressed = model.body_names.index(pressed)
         self.M = grid
@@ -147,17 +149,20 @@ class TiltedContactSolver:
         return self._side(j) * (self.nr * (self.z - z0) - self.nz * self.r)
 
     def solve(self, tilt_deg: float = 0.0, offset_mm: float = 0.0, self_aligning: bool = False,
-              load_scale: float = 1.0, start: TiltedResult | None = None) -> TiltedResult:
+              load_scale: float = 1.0, start: TiltedResult | None = None,
+              gaps: list[np.ndarray] | None = None) -> TiltedResult:
         """Contact at one tilt/offset/load level.  ``start``: a solution of a nearby problem
         (the previous value of a sweep) whose closed set and forces seed the active set; it
-        saves sweeps, the answer is the same to the solver tolerance."""
+        saves sweeps, the answer is the same to the solver tolerance.  ``gaps``: axisymmetric
+        initial gaps per interface node replacing the model's, as for :meth:`ContactSolver.solve`."""
         t0 = time.perf_counter()
         base, M = self.base, self.M
         cos, sin = np.cos(self.theta), np.sin(self.theta)
         phi = math.radians(tilt_deg)
         imposed = phi * self.rotation_gap(self.pressed, self.pivot_z) + \
             offset_mm * self._side(self.pressed) * self.nr
-        g = (base.g0 + load_scale * base.g_load)[:, None] + imposed[:, None] * cos[None]
+        g0 = base.g0 if gaps is None else np.concatenate([np.asarray(x, float) for x in gaps])
+        g = (g0 + load_scale * base.g_load)[:, None] + imposed[:, None] * cos[None]
         cols = [np.repeat(base.B[:, c][:, None], M, axis=1) for c in range(base.B.shape[1])]
         e = list(load_scale * base.e)
         free_tilt = [j for j in base.prep.free_bodies if j != self.pressed or self_aligning]

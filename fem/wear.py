@@ -103,7 +103,8 @@ class ArchardStepper:
     """Backward-Euler Archard steps on one condensed contact solver (call inside
     ``threadpool_limits(limits=1)``, as :func:`wear_in` does)."""
 
-    def __init__(self, solver: ContactSolver, wear_coefficient: float, faces_per_interface: int = 1):
+    def __init__(self, solver: ContactSolver, wear_coefficient: float, faces_per_interface: int = 1,
+                 gaps: list[np.ndarray] | None = None, load_scale: float = 1.0):
         self.solver = solver
         self.k = float(wear_coefficient)
         self.faces = int(faces_per_interface)
@@ -112,7 +113,10 @@ class ArchardStepper:
         area = np.concatenate([f.area for f in solver.faces])
         self.area = area
         self.has_area = area > 1e-12 * area.max()
-        self.g_base = solver.g0 + solver.g_load
+        # the new interface: the initial gaps (the model's unless given) under the scaled load
+        g0 = solver.g0 if gaps is None else np.concatenate([np.asarray(g, float) for g in gaps])
+        self.g_base = g0 + load_scale * solver.g_load
+        self.e = load_scale * solver.e
 
     def split(self, values: np.ndarray) -> list[np.ndarray]:
         return np.split(values, np.cumsum(self.sizes)[:-1])
@@ -122,7 +126,7 @@ class ArchardStepper:
         wear_compliance = np.where(self.has_area, self.k * self.r * d_sliding * _MM_TO_M /
                                    np.where(self.has_area, self.area, 1.0), 0.0)
         C = self.solver.C + np.diag(wear_compliance)
-        sol = solve_lcp(C, self.g_base + depth, self.solver.B, self.solver.e)
+        sol = solve_lcp(C, self.g_base + depth, self.solver.B, self.e)
         return sol.lam, depth + wear_compliance * sol.lam, _interfaces(self.solver.faces, sol)
 
     def volume_rate(self, lam: np.ndarray) -> float:
@@ -140,7 +144,7 @@ class ArchardStepper:
             s = np.hypot(xy[0] - xy[0, 0], xy[1] - xy[1, 0])
             ramps.append(_PROBE_MM * (s / max(s[-1], 1e-300) - 0.5))
         ramp = np.concatenate(ramps)
-        sol = solve_lcp(self.solver.C, self.g_base + depth + ramp, self.solver.B, self.solver.e)
+        sol = solve_lcp(self.solver.C, self.g_base + depth + ramp, self.solver.B, self.e)
         lam0 = np.concatenate([i.normal_force for i in interfaces])
         on = self.has_area & (lam0 > 0) & (sol.lam > 0)
         dp = (sol.lam - lam0)[on] / self.area[on]
@@ -155,7 +159,8 @@ class ArchardStepper:
 def wear_in(solver: ContactSolver, wear_coefficient: float, *, step_cap: float = 0.05,
             steady_tolerance: float = 1e-3, max_wear_depth: float = np.inf, max_steps: int = 400,
             sliding_limit_rad: float | None = None, volume_limit_mm3: float | None = None,
-            faces_per_interface: int = 1) -> WearPath:
+            faces_per_interface: int = 1, gaps: list[np.ndarray] | None = None,
+            load_scale: float = 1.0) -> WearPath:
     """Wear the faces from the solver's initial gaps.
 
     Steady state: the largest relative change of p r over the contact in a step, per
@@ -165,12 +170,14 @@ def wear_in(solver: ContactSolver, wear_coefficient: float, *, step_cap: float =
     in steps doubling each time: the steady path does not depend on the step).  It
     always stops at the wear depth ``max_wear_depth`` (mm, lining worn to its limit)
     or after ``max_steps``.  ``faces_per_interface``: faces each modelled interface
-    stands for (the volume counts them all).
+    stands for (the volume counts them all).  ``gaps`` and ``load_scale``: the new
+    interface's initial gaps and load level, as for :meth:`ContactSolver.solve`.
     """
     # small dense solves: threaded BLAS is slower here (design.md §6), and limiting the
     # threads once costs a library scan, so once for the whole run
     with threadpool_limits(limits=1):
-        return _wear_path(ArchardStepper(solver, wear_coefficient, faces_per_interface), step_cap,
+        stepper = ArchardStepper(solver, wear_coefficient, faces_per_interface, gaps, load_scale)
+        return _wear_path(stepper, step_cap,
                           steady_tolerance, max_wear_depth, max_steps, sliding_limit_rad, volume_limit_mm3)
 
 

@@ -58,6 +58,20 @@ def face_node_count(length: float, face_size: float, edge_size: float) -> tuple[
 
 
 def mesh_section(section: Section, order: int | None = None) -> SectionMesh:
+    """Mesh a section with gmsh (triangles; matching nodes on both sides of every friction face).
+
+    Parameters
+    ----------
+    section : Section
+        From :func:`build_section`, with the case's mesh controls attached.
+    order : int, optional
+        1 (default: the FE stage builds P2 fields on the linear mesh) or 2 (for output only).
+
+    Returns
+    -------
+    SectionMesh
+        Points, triangles, region and face groups, and the node pairs of each friction face.
+    """
     import gmsh   # imported late: gmsh starts a C++ runtime
 
     order = order or 1

@@ -3,6 +3,9 @@ from __future__ import annotations
 
 import meshio
 import numpy as np
+from matplotlib import colormaps
+from matplotlib.figure import Figure
+from matplotlib.tri import Triangulation
 
 from .mesher import SectionMesh
 from .section import Section
@@ -30,21 +33,17 @@ def write_mesh(mesh: SectionMesh, path) -> None:
 
 def section_picture(section: Section, mesh: SectionMesh, path, title: str = "") -> None:
     """PNG of the meshed section: regions shaded, named faces drawn thick and listed."""
-    import matplotlib
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-    from matplotlib.tri import Triangulation
-
     tri = Triangulation(mesh.points[:, 0], mesh.points[:, 1], mesh.triangles[:, :3])
     r_span = np.ptp(mesh.points[:, 0])
     z_span = np.ptp(mesh.points[:, 1])
     height = 7.0
     width = float(np.clip(height * r_span / max(z_span, 1e-9) + 3.5, 6.0, 16.0))
-    fig, ax = plt.subplots(figsize=(width, height))
-    shades = plt.get_cmap("Pastel1")
+    fig = Figure(figsize=(width, height))
+    ax = fig.add_subplot()
+    shades = colormaps["Pastel1"]
     ax.tripcolor(tri, facecolors=mesh.triangle_region % 9, cmap=shades, vmin=0, vmax=8, edgecolors="none")
     ax.triplot(tri, color="0.55", lw=0.25)
-    strong = plt.get_cmap("tab10")
+    strong = colormaps["tab10"]
     for k, name in enumerate(sorted(mesh.faces)):
         segs = mesh.faces[name][:, [0, -1]] if mesh.order == 1 else mesh.faces[name][:, :2]
         colour = strong(k % 10)
@@ -69,7 +68,6 @@ def section_picture(section: Section, mesh: SectionMesh, path, title: str = "") 
     ax.legend(loc="center left", bbox_to_anchor=(1.01, 0.5), fontsize=8, title="named faces")
     fig.tight_layout()
     fig.savefig(path, dpi=130)
-    plt.close(fig)
 
 
 def _draw_load_and_supports(ax, section: Section, mesh: SectionMesh) -> None:

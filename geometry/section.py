@@ -13,13 +13,11 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from ..errors import CaseError
 
-class GeometryError(ValueError):
-    """The parameters give an impossible section; one message per problem."""
 
-    def __init__(self, problems: list[str]):
-        super().__init__("\n".join(problems))
-        self.problems = problems
+class GeometryError(CaseError):
+    """The parameters give an impossible section; one message per problem (invalid input, exit 2)."""
 
 
 @dataclass
@@ -58,6 +56,15 @@ class FrictionInterface:
     @property
     def slant_length(self) -> float:
         return math.dist(self.start, self.end)
+
+    def initial_gap(self, points_rz) -> np.ndarray:
+        """Initial normal gap (mm) at (k, 2) points (r, z) on this face: linear from
+        ``gap_start`` at r1 to ``gap_end`` at r2 (the one place the gap is defined)."""
+        xy = np.asarray(points_rz, float).reshape(-1, 2)
+        along = np.linalg.norm(xy - np.asarray(self.start, float), axis=1) / self.slant_length
+        # round-off must not put a node a hair past r2 (a negative gap) or before r1
+        along = np.clip(along, 0.0, 1.0)
+        return self.gap_start + (self.gap_end - self.gap_start) * along
 
 
 @dataclass

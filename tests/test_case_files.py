@@ -8,10 +8,10 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from clutchfe.case import CaseError, case_from_dict, load_case
-from clutchfe.cli import main
+from clutchfe._cli import main
 from clutchfe.schema import SCHEMA
 
-from conftest import CASES, CONE, PLATE, write_toml
+from tests.helpers.data import CASES, CONE, PLATE, write_toml
 
 
 def _run(tmp_path, data, capsys, command="check"):
@@ -149,7 +149,7 @@ def test_check_passes_on_every_demo_case(path, capsys):
 
 def test_console_script_exits_2_without_traceback(tmp_path):
     path = write_toml(tmp_path / "bad.toml", _set(CONE, "interface.friction_coefficient", 1.5))
-    proc = subprocess.run([sys.executable, "-m", "clutchfe.cli", "run", str(path)], capture_output=True,
+    proc = subprocess.run([sys.executable, "-m", "clutchfe._cli", "run", str(path)], capture_output=True,
                           text=True, timeout=120)
     assert proc.returncode == 2
     assert "interface.friction_coefficient = 1.5" in proc.stderr
@@ -195,7 +195,7 @@ def test_random_parameters_never_crash_check(data, capsys):
     except CaseError as exc:
         assert exc.problems and all(isinstance(p, str) and p for p in exc.problems)
         return
-    from clutchfe.pipeline import section_of
+    from clutchfe.plan import section_of
     try:
         section_of(case)
     except CaseError as exc:

@@ -245,7 +245,7 @@ def test_effective_radius_stays_on_the_annulus(profile, r1, k, alpha, mu, w):
     assert r1 - slack <= out["effective_radius_mm"] <= r2 + slack
     assert -1e-9 <= out["effective_radius_position"] <= 1.0 + 1e-9
     assert all_floats_finite(out)
-    json.dumps(out, allow_nan=False)   # goes straight into summary.json: plain, NaN-free types
+    json.dumps(out.as_dict(), allow_nan=False)   # goes into summary.json: plain, NaN-free types
 
 
 @settings(max_examples=60, deadline=None)

@@ -2,9 +2,11 @@
 import json
 import re
 
+import pytest
+
 from clutchfe.schema import SCHEMA
 
-from conftest import ROOT
+from tests.helpers.data import ROOT
 
 
 def test_readme_documents_every_case_key():
@@ -23,8 +25,9 @@ def test_ci_runs_exactly_the_readme_test_command():
     assert test_command in ci
 
 
+@pytest.mark.slow
 def test_readme_worked_example_matches_a_fresh_run(tmp_path, capsys):
-    from clutchfe.cli import main
+    from clutchfe._cli import main
     readme = (ROOT / "README.md").read_text(encoding="utf-8")
     assert main(["run", str(ROOT / "cases" / "cone_capstan.toml"), "--out", str(tmp_path / "r")]) == 0
     summary = json.loads((tmp_path / "r" / "summary.json").read_text())

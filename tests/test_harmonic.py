@@ -14,13 +14,9 @@ from clutchfe.fem.harmonic import HarmonicStiffness
 from clutchfe.fem.tilted import TiltedContactSolver
 from clutchfe.verification.tilted import LINING_E as E_LINING
 from clutchfe.verification.tilted import LINING_T as T_LINING
-from clutchfe.verification.tilted import R1, R2, W, lined_annulus
+from clutchfe.verification.tilted import R1, R2, W
 
-
-def lined_blocks(E_steel=2e8, order=2, nu_lining=0.0, E_top=None, elements=15):
-    """Base block (rigid-ish steel) with a bonded lining on top; pressed steel block above
-    (the verify suite's annulus, clutchfe/verification/tilted.py)."""
-    return lined_annulus(E_steel, E_top or E_steel, nu_lining, elements, order)
+from tests.helpers.models import lined_blocks
 
 
 def test_harmonic_zero_reproduces_the_axisymmetric_stiffness():
@@ -97,5 +93,7 @@ def test_zero_tilt_equals_the_axisymmetric_solve():
     solver = TiltedContactSolver(lined_blocks(E_steel=2e5), "top", grid=16)
     ax = solver.base.solve(fields=False).interfaces[0]
     g = solver.solve().interfaces[0]
+    # measured (HEAD 0f9d85f): ring forces 7e-15 of the largest, peak pressure 0 (round-off only)
     assert np.allclose(g.normal_force.sum(axis=1), ax.normal_force, rtol=1e-6, atol=1e-9 * W)
-    assert abs(g.pressure.max() / ax.pressure.max() - 1) < 1e-6
+    assert np.abs(g.normal_force.sum(axis=1) - ax.normal_force).max() <= 1e-13 * np.abs(ax.normal_force).max()
+    assert abs(g.pressure.max() / ax.pressure.max() - 1) < 1e-13

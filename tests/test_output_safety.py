@@ -11,11 +11,12 @@ import sys
 import pytest
 
 from clutchfe.case import case_from_dict
-from clutchfe.cli import main
+from clutchfe._cli import main
 from clutchfe.errors import CaseError, OutputFolderError
-from clutchfe.results import MARKER, atomic_folder, check_output_folder, folder_lock, label_problem, safe_label
+from clutchfe.names import label_problem, safe_label
+from clutchfe.output.folders import MARKER, atomic_folder, check_output_folder, folder_lock
 
-from conftest import CONE, PLATE, write_toml
+from tests.helpers.data import CONE, PLATE, write_toml
 
 
 def _user_folder(root):
@@ -139,7 +140,7 @@ def test_scratch_of_a_killed_writer_is_cleaned_by_the_next_run(tmp_path):
     # a child process opens a scratch folder and is killed with SIGKILL before it finishes
     folder = tmp_path / "res"
     code = ("import os, signal, sys\n"
-            "from clutchfe.results import atomic_folder\n"
+            "from clutchfe.output.folders import atomic_folder\n"
             f"with atomic_folder({str(folder)!r}) as tmp:\n"
             "    (tmp / 'half.txt').write_text('half')\n"
             "    os.kill(os.getpid(), signal.SIGKILL)\n")

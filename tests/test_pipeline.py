@@ -1,5 +1,4 @@
 """The whole job on cases: limits with known answers, invariants on the demos, files written."""
-import copy
 import csv
 import json
 import math
@@ -9,23 +8,16 @@ import numpy as np
 import pytest
 
 from clutchfe.case import case_from_dict, load_case
-from clutchfe.cli import main
-from clutchfe.pipeline import solve_case
+from clutchfe._cli import main
+from tests.helpers.solving import solve_case
 
-from conftest import CASES, CONE, PLATE, write_toml
+from tests.helpers.data import CASES, CONE, PLATE, with_tables, write_toml
 
 SUMMARY_KEYS = """case_name kind input_sha256 version friction_coefficient friction_surfaces
 semi_cone_angle_deg inner_radius_mm outer_radius_mm axial_force_N torque_fe_Nm
 torque_uniform_pressure_Nm torque_uniform_wear_Nm capacity_position effective_radius_mm
 radius_uniform_pressure_mm radius_uniform_wear_mm peak_pressure_MPa mean_pressure_MPa
 contact_area_fraction axial_force_balance_error engagement_force_N dofs solve_seconds""".split()
-
-
-def _with(data, **tables):
-    data = copy.deepcopy(data)
-    for table, values in tables.items():
-        data.setdefault(table, {}).update(values)
-    return data
 
 
 @pytest.fixture(scope="module")
@@ -44,7 +36,7 @@ def _rigid_bodies(data, lining_modulus=400.0):
     stiff = {"youngs_modulus": 1e5 * lining_modulus}
     tables = {"cone": stiff, "cup": stiff} if data["kind"] == "cone" else \
         {"pressure_plate": stiff, "disc": stiff, "counter_plate": stiff}
-    return _with(data, lining={"youngs_modulus": lining_modulus}, **tables)
+    return with_tables(data, lining={"youngs_modulus": lining_modulus}, **tables)
 
 
 @pytest.mark.parametrize("base", [CONE, PLATE], ids=["cone", "plate"])
@@ -56,7 +48,7 @@ def test_thin_lining_on_rigid_bodies_tends_to_uniform_pressure(base):
     t0 = case_from_dict(data).lining.thickness
     xis = []
     for k in range(4):
-        case = case_from_dict(_with(data, lining={"thickness": t0 / 2 ** k}))
+        case = case_from_dict(with_tables(data, lining={"thickness": t0 / 2 ** k}))
         _, _, result = solve_case(case)
         xis.append(result["capacity_position"])
     assert all(b > a for a, b in zip(xis, xis[1:])), xis
@@ -67,7 +59,7 @@ def test_rigid_backed_lining_with_angle_mismatch_gives_a_linear_pressure():
     # Winkler layer under a linear gap g(s): p = k (delta - g(s)), linear along the slant where
     # closed (elastic-foundation model, Johnson 1985, §5.8), with k = E (1 - nu) / ((1 + nu)(1 - 2 nu) h)
     # for a thin layer whose lateral strain is held by the bonded faces (oedometric modulus).
-    data = _with(_rigid_bodies(CONE), lining={"thickness": 1.0}, misalignment={"cone_angle_mismatch": 0.02})
+    data = with_tables(_rigid_bodies(CONE), lining={"thickness": 1.0}, misalignment={"cone_angle_mismatch": 0.02})
     case = case_from_dict(data)
     mesh, fe, result = solve_case(case)
     itf = fe.interfaces[0]
@@ -89,16 +81,18 @@ def test_rigid_backed_lining_with_angle_mismatch_gives_a_linear_pressure():
 
 # ---------------------------------------------------------------- invariants on every demo
 
+@pytest.mark.slow
 def test_demo_invariants(demo_results):
     for name, (case, mesh, fe, result) in demo_results.items():
-        assert abs(result["axial_force_balance_error"]) <= 5e-3, name        # axial balance 0.5 %
+        # axial balance (measured on the demos, HEAD 0f9d85f: at most 4.4e-16, round-off)
+        assert abs(result["axial_force_balance_error"]) <= 2e-14, name
         for itf in fe.interfaces:
             assert (itf.pressure >= 0).all() and np.isfinite(itf.pressure).all(), name
         r1, r2 = case.interface.inner_radius, case.interface.outer_radius
         assert r1 <= result["effective_radius_mm"] <= r2, name
         assert len(result["surfaces"]) == case.interface.friction_surfaces
         shares = [s["axial_force_share"] for s in result["surfaces"]]
-        assert sum(shares) == pytest.approx(1.0, abs=1e-6)
+        assert sum(shares) == pytest.approx(1.0, abs=1e-12)       # measured: exactly 1 on every demo
 
 
 @pytest.mark.parametrize("base", [CONE, PLATE], ids=["cone", "plate"])
@@ -107,14 +101,16 @@ def test_force_and_friction_scale_linearly(base):
     # (linear elasticity): doubling W doubles every contact force; T_fe is linear in mu.
     case = case_from_dict(base)
     _, _, ref = solve_case(case)
-    doubled = case_from_dict(_with(base, load={"axial_force": 2 * base["load"]["axial_force"]}))
+    doubled = case_from_dict(with_tables(base, load={"axial_force": 2 * base["load"]["axial_force"]}))
     _, _, two_w = solve_case(doubled)
-    assert two_w["torque_fe_Nm"] == pytest.approx(2 * ref["torque_fe_Nm"], rel=5e-3)
-    assert two_w["capacity_position"] == pytest.approx(ref["capacity_position"], abs=1e-3)
+    # measured (HEAD 0f9d85f): equal bit for bit (doubling is exact in binary floating point), so the
+    # bounds only leave room for a solver whose iterations are not scale-free
+    assert two_w["torque_fe_Nm"] == pytest.approx(2 * ref["torque_fe_Nm"], rel=1e-12)
+    assert two_w["capacity_position"] == pytest.approx(ref["capacity_position"], abs=1e-12)
     mu = base["interface"]["friction_coefficient"]
-    twice_mu = case_from_dict(_with(base, interface={"friction_coefficient": 2 * mu}))
+    twice_mu = case_from_dict(with_tables(base, interface={"friction_coefficient": 2 * mu}))
     _, _, two_mu = solve_case(twice_mu)
-    assert two_mu["torque_fe_Nm"] == pytest.approx(2 * ref["torque_fe_Nm"], rel=5e-3)
+    assert two_mu["torque_fe_Nm"] == pytest.approx(2 * ref["torque_fe_Nm"], rel=1e-12)
 
 
 def test_cone_demo_mesh_convergence():
@@ -131,7 +127,7 @@ def test_cone_demo_mesh_convergence():
         f = 1.5 ** level
         mesh = {k: v / f for k, v in base.items()}
         mesh["lining_layers"] = 2 + level
-        _, _, result = solve_case(case_from_dict(_with(data, mesh=mesh)))
+        _, _, result = solve_case(case_from_dict(with_tables(data, mesh=mesh)))
         xis.append(result["capacity_position"])
     assert abs(xis[2] - xis[1]) < 0.02, xis
 
@@ -183,11 +179,11 @@ def test_failed_run_leaves_nothing_half_written(tmp_path, capsys, monkeypatch):
     assert main(["run", str(path), "--out", str(out)]) == 0
     before = (out / "summary.json").read_text()
 
-    from clutchfe import outputs
+    from clutchfe.output import files
 
     def broken(*args, **kwargs):
         raise RuntimeError("disk trouble while drawing")
-    monkeypatch.setattr(outputs, "deformed_picture", broken)
+    monkeypatch.setattr(files, "deformed_picture", broken)
     assert main(["run", str(path), "--out", str(out)]) == 1
     assert (out / "summary.json").read_text() == before      # the earlier result is intact
     assert [p.name for p in tmp_path.glob(".res.*")] == [".res.lock"]      # no scratch left
@@ -197,18 +193,20 @@ def test_failed_run_leaves_nothing_half_written(tmp_path, capsys, monkeypatch):
 
 def test_contact_failure_exits_3_with_the_reason(tmp_path, capsys, monkeypatch):
     import clutchfe.fem as fem
+    from clutchfe.solve import service
 
     def cannot_carry(model):
         raise fem.ContactError("interface s1 opens everywhere: it cannot carry the axial force")
-    monkeypatch.setattr(fem, "ContactSolver", cannot_carry)
+    monkeypatch.setattr(service, "ContactSolver", cannot_carry)       # the one place a case is condensed
     path = write_toml(tmp_path / "c.toml", CONE)
     assert main(["run", str(path), "--out", str(tmp_path / "r")]) == 3
     assert "cannot carry" in capsys.readouterr().err
     assert not (tmp_path / "r").exists()
 
 
+@pytest.mark.slow
 def test_tilted_run_writes_the_circumferential_pressure(tmp_path, capsys):
-    data = _with(CONE, misalignment={"axis_tilt": 0.02}, verification={"mesh_study": False})
+    data = with_tables(CONE, misalignment={"axis_tilt": 0.02}, verification={"mesh_study": False})
     path = write_toml(tmp_path / "c.toml", data)
     out = tmp_path / "r"
     assert main(["run", str(path), "--out", str(out)]) == 0
@@ -227,7 +225,7 @@ def test_tilted_run_writes_the_circumferential_pressure(tmp_path, capsys):
 
 
 def test_wear_with_tilt_is_refused(tmp_path, capsys):
-    data = _with(CONE, misalignment={"axis_tilt": 0.02}, wear={"target_wear_volume": 10.0})
+    data = with_tables(CONE, misalignment={"axis_tilt": 0.02}, wear={"target_wear_volume": 10.0})
     path = write_toml(tmp_path / "c.toml", data)
     assert main(["check", str(path)]) == 2
     assert "misalignment.axis_tilt" in capsys.readouterr().err

@@ -8,7 +8,7 @@ import numpy as np
 import pytest
 
 from clutchfe.comparison import compare, hand_capacity
-from clutchfe.plots import effective_radius_bar, pressure_plot
+from clutchfe.output.plots import effective_radius_bar, pressure_plot
 
 PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
 

@@ -4,29 +4,34 @@ import copy
 import dataclasses
 import json
 import math
+import os
 import re
 import shutil
+from html.parser import HTMLParser
 from pathlib import Path
 
 import pytest
 from rich.console import Console
 
-from clutchfe import pipeline
+from clutchfe import plan
 from clutchfe.errors import CaseError
 from clutchfe.case import case_from_dict, load_case
-from clutchfe.report import add_report_to_run
 
-from conftest import CASES, CONE
+from tests.helpers.data import CASES, CONE
 
-CHROMIUM = shutil.which("chromium") or "/usr/bin/chromium"
-CHROMEDRIVER = shutil.which("chromedriver") or "/usr/bin/chromedriver"
 PICTURES = 4          # section, pressure, effective radius bar, deformed section
 
 
+def browser_paths() -> tuple[str, str]:
+    """Headless Chromium and its driver: CLUTCHFE_CHROMIUM / CLUTCHFE_CHROMEDRIVER if set (e.g. a
+    missing path, to check that the browser tests skip), else the ones on PATH or in /usr/bin."""
+    return (os.environ.get("CLUTCHFE_CHROMIUM") or shutil.which("chromium") or "/usr/bin/chromium",
+            os.environ.get("CLUTCHFE_CHROMEDRIVER") or shutil.which("chromedriver") or "/usr/bin/chromedriver")
+
+
 def _run(case, folder: Path, monkeypatch) -> dict:
-    # exactly this report hook, whatever else is registered
-    monkeypatch.setattr(pipeline, "REPORTS", [add_report_to_run])
-    pipeline.run_case(case, pipeline.section_of(case), folder, Console(file=open(folder.parent / "log.txt", "w")))
+    with open(folder.parent / "log.txt", "w", encoding="utf-8") as log:
+        plan.run_case(case, folder, Console(file=log))
     return json.loads((folder / "summary.json").read_text(encoding="utf-8"))
 
 
@@ -44,19 +49,23 @@ def cone_report(tmp_path_factory):
 
 @pytest.fixture(scope="module")
 def browser(tmp_path_factory):
-    from selenium import webdriver
+    chromium, chromedriver = browser_paths()
+    missing = [p for p in (chromium, chromedriver) if not Path(p).is_file()]
+    if missing:
+        pytest.skip(f"no headless Chromium + chromedriver: {', '.join(missing)} not found (.ci/run installs "
+                    "the Debian packages chromium, chromium-driver; CLUTCHFE_CHROMIUM / CLUTCHFE_CHROMEDRIVER "
+                    "give other paths)")
+    webdriver = pytest.importorskip("selenium.webdriver", reason="selenium is not installed (pip install -e .[test])")
     from selenium.webdriver.chrome.service import Service
 
-    assert Path(CHROMIUM).exists() and Path(CHROMEDRIVER).exists(), \
-        "headless Chromium and its driver are needed (.ci/run installs the Debian packages chromium, chromium-driver)"
     options = webdriver.ChromeOptions()
-    options.binary_location = CHROMIUM
+    options.binary_location = chromium
     for arg in ("--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking",
                 "--disable-component-update", "--no-first-run", "--disable-sync", "--window-size=1280,2000",
                 f"--user-data-dir={tmp_path_factory.mktemp('chromium-profile')}"):
         options.add_argument(arg)
     options.set_capability("goog:loggingPrefs", {"browser": "ALL"})
-    driver = webdriver.Chrome(service=Service(executable_path=CHROMEDRIVER), options=options)
+    driver = webdriver.Chrome(service=Service(executable_path=chromedriver), options=options)
     yield driver
     driver.quit()
 
@@ -65,6 +74,31 @@ def _open(browser, path: Path):
     browser.get(path.resolve().as_uri())
     browser.execute_script("return document.readyState")
     return browser.get_log("browser")
+
+
+class _Page(HTMLParser):
+    """The tags, title and text of a page as an HTML parser reads them, entities decoded (no browser)."""
+
+    def __init__(self, page: str):
+        super().__init__(convert_charrefs=True)
+        self.tags, self.title, self.text, self._where = [], "", [], None
+        self.feed(page)
+        self.close()
+
+    def handle_starttag(self, tag, attrs):
+        self.tags.append((tag, dict(attrs)))
+        if tag in ("title", "style"):
+            self._where = tag
+
+    def handle_endtag(self, tag):
+        if tag == self._where:
+            self._where = None
+
+    def handle_data(self, data):
+        if self._where == "title":
+            self.title += data
+        elif self._where is None:
+            self.text.append(data)
 
 
 def _lookup(summary: dict, dotted: str):
@@ -120,6 +154,8 @@ def test_report_is_self_contained(cone_report):
     assert "<script" not in page.lower()
     assert not re.search(r"""(src|href)\s*=\s*["']?(https?:|//)""", page, re.I)
     assert "default-src 'none'" in page           # the browser itself refuses any network fetch
+    images = [attrs for tag, attrs in _Page(page).tags if tag == "img"]
+    assert len(images) == PICTURES and all(a["src"].startswith("data:image/png;base64,") for a in images)
 
 
 def test_mesh_study_of_the_cone_demo(cone_report):
@@ -155,23 +191,46 @@ HOSTILE_NAME = 'cone <img src=x onerror="document.title=1"> & "quotes"'
 HOSTILE_TEXT = "<script>document.title='owned'</script> bore < 40 mm & > 20 mm"
 
 
-def test_user_text_is_escaped_and_mesh_study_can_be_off(tmp_path, browser, monkeypatch):
+@pytest.fixture(scope="module")
+def hostile_report(tmp_path_factory):
+    """The report of a case whose name and description are HTML, mesh study switched off."""
+    data = copy.deepcopy(CONE)
+    data.update(description=HOSTILE_TEXT, verification={"mesh_study": False})
+    case = dataclasses.replace(case_from_dict(data), name=HOSTILE_NAME)
+    mp = pytest.MonkeyPatch()
+    try:
+        folder = tmp_path_factory.mktemp("hostile") / "hostile"
+        summary = _run(case, folder, mp)
+    finally:
+        mp.undo()
+    return folder, summary
+
+
+def test_user_text_is_escaped_and_mesh_study_can_be_off(hostile_report):
     data = copy.deepcopy(CONE)
     data.update(description=HOSTILE_TEXT, verification={"mesh_study": False})
     with pytest.raises(CaseError):                      # a case file cannot give such a name …
         case_from_dict({**data, "name": HOSTILE_NAME})
     # … but the report escapes the name all the same (defence in depth)
-    case = dataclasses.replace(case_from_dict(data), name=HOSTILE_NAME)
-    folder = tmp_path / "hostile"
-    summary = _run(case, folder, monkeypatch)
+    folder, summary = hostile_report
     assert summary["mesh_study"]["skipped"].startswith("switched off")
     page = (folder / "report.html").read_text(encoding="utf-8")
     assert "<script" not in page and "<img src=x" not in page
     assert "&lt;script&gt;" in page
+    # what a browser's parser reads: the name and text literally, no script and no event handler
+    parsed = _Page(page)
+    assert parsed.title == f"clutchfe report: {HOSTILE_NAME}"
+    assert HOSTILE_TEXT in "".join(parsed.text) and "Mesh study not run" in "".join(parsed.text)
+    assert [t for t, attrs in parsed.tags if t == "script" or any(a.startswith("on") for a in attrs)] == []
+    assert sum(t == "img" for t, _ in parsed.tags) == PICTURES
+    assert not math.isnan(summary["torque_fe_Nm"])
+
+
+def test_escaped_user_text_shows_literally_in_the_browser(hostile_report, browser):
+    folder, _ = hostile_report
     log = _open(browser, folder / "report.html")
     assert [entry for entry in log if entry["level"] == "SEVERE"] == []
     assert browser.title == f"clutchfe report: {HOSTILE_NAME}"          # shown literally, nothing ran
     body = browser.find_element("tag name", "body").text
     assert HOSTILE_TEXT in body and "Mesh study not run" in body
     assert len(browser.execute_script("return document.images")) == PICTURES
-    assert not math.isnan(summary["torque_fe_Nm"])

@@ -22,13 +22,14 @@ from rich.console import Console
 from scipy import stats
 
 from clutchfe.case import CaseError
-from clutchfe.pipeline import solved_case
+from tests.helpers.solving import solved_case
 from clutchfe.study import (evaluate, find_limit, load_study, plan, read_store, run_study, sample_case,
                             unit_draws, wilson_interval)
 from clutchfe.study.evaluate import solve_chunk
 from clutchfe.study.sampling import frozen
 from clutchfe.study.spec import Distribution
-from conftest import write_toml
+
+from tests.helpers.data import write_toml
 
 COARSE = {"interface_element_size": 1.5, "element_size": 8.0, "edge_element_size": 0.6}
 CONE = {"kind": "cone", "name": "small_cone",
@@ -173,6 +174,7 @@ def test_a_sample_that_cannot_be_solved_is_recorded_with_its_reason():
 
 # ------------------------------------------------------------------ whole studies
 
+@pytest.mark.slow
 def test_sweep_reproduces_torque_proportional_to_mu_and_force(tmp_path):
     base = copy.deepcopy(CONE)
     base["requirement"] = {"required_torque": 20.0, "service_factor": 1.25}
@@ -201,6 +203,7 @@ def test_sweep_reproduces_torque_proportional_to_mu_and_force(tmp_path):
     assert {"capacity_histogram.png", "response_curves.png"} <= set(os.listdir(out))
 
 
+@pytest.mark.slow
 def test_shortfall_probability_matches_the_normal_cdf(tmp_path):
     base = copy.deepcopy(CONE)
     base["requirement"] = {"required_torque": 20.0, "service_factor": 1.25}
@@ -277,6 +280,7 @@ def stiffness_reference(tmp_path_factory):
     return path, _csv(tmp / "res" / "samples.csv")
 
 
+@pytest.mark.slow
 def test_same_table_with_two_workers(stiffness_reference, tmp_path):
     path, reference = stiffness_reference
     summary = run_study(path, workers=2, console=QUIET, out=tmp_path / "res")
@@ -284,13 +288,36 @@ def test_same_table_with_two_workers(stiffness_reference, tmp_path):
     assert _csv(tmp_path / "res" / "samples.csv") == reference
 
 
-def _wait_for(predicate, timeout: float, what: str):
-    end = time.monotonic() + timeout
-    while time.monotonic() < end:
-        if predicate():
-            return
-        time.sleep(0.05)
-    raise AssertionError(f"timed out waiting for {what}")
+def _ended(p) -> bool:
+    """A subprocess or thread that has finished."""
+    return p.poll() is not None if isinstance(p, subprocess.Popen) else not p.is_alive()
+
+
+def _wait_until(predicate, what: str, needs=(), detail=lambda: ""):
+    """Poll until predicate() holds, with no deadline: a slow machine only waits longer.  Fails at
+    once when a process or thread in ``needs`` ends first, so a crash cannot leave the test hanging."""
+    while not predicate():
+        gone = [p for p in needs if _ended(p)]
+        if gone and not predicate():
+            raise AssertionError(f"waiting for {what}: {gone[0]} ended first {detail()}")
+        time.sleep(0.05)        # polling interval, not a limit
+
+
+class _StudyThread(threading.Thread):
+    """run_study in the background, keeping its summary or its exception."""
+
+    def __init__(self, *args, **kwargs):
+        super().__init__(daemon=True)           # never keeps the test session alive
+        self.args, self.kwargs, self.summary, self.error = args, kwargs, None, None
+
+    def run(self):
+        try:
+            self.summary = run_study(*self.args, **self.kwargs)
+        except BaseException as exc:  # noqa: BLE001 - re-raised by the test
+            self.error = exc
+
+    def __repr__(self):
+        return f"run_study (error: {self.error!r})"
 
 
 def _stored(folder: Path) -> int:
@@ -300,57 +327,78 @@ def _stored(folder: Path) -> int:
         return 0
 
 
+def _scheduler_address(sched_file: Path):
+    """The address in the scheduler file, or None while the file is missing or half written."""
+    try:
+        return json.loads(sched_file.read_text())["address"]
+    except (OSError, ValueError, KeyError):
+        return None
+
+
+@pytest.mark.slow
 def test_killed_worker_on_a_real_scheduler_loses_nothing(stiffness_reference, tmp_path):
+    from distributed import Client
+
     path, reference = stiffness_reference
     procs = []
     try:
         sched_file = tmp_path / "scheduler.json"
-        procs.append(subprocess.Popen([sys.executable, "-m", "distributed.cli.dask_scheduler", "--host",
-                                       "127.0.0.1", "--port", "0", "--no-dashboard", "--scheduler-file",
-                                       str(sched_file)], stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL))
-        _wait_for(sched_file.exists, 60, "the scheduler")
-        time.sleep(0.2)
-        address = json.loads(sched_file.read_text())["address"]
+        scheduler = subprocess.Popen([sys.executable, "-m", "distributed.cli.dask_scheduler", "--host",
+                                      "127.0.0.1", "--port", "0", "--no-dashboard", "--scheduler-file",
+                                      str(sched_file)], stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+        procs.append(scheduler)
+        _wait_until(lambda: _scheduler_address(sched_file), "the scheduler file", needs=[scheduler])
+        address = _scheduler_address(sched_file)
         for _ in range(2):
             procs.append(subprocess.Popen([sys.executable, "-m", "distributed.cli.dask_worker", address,
                                            "--nthreads", "1", "--no-nanny", "--host", "127.0.0.1",
                                            "--no-dashboard"], stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL))
-        from distributed import Client
-        with Client(address, timeout="30s") as c:
-            c.wait_for_workers(2, timeout=60)
+        client = None
+        while client is None:           # the scheduler listens once its file is written; retry if slow
+            try:
+                client = Client(address)
+            except (OSError, TimeoutError):
+                assert not _ended(scheduler), "the scheduler ended before a client could connect"
+        with client:
+            _wait_until(lambda: len(client.scheduler_info()["workers"]) >= 2, "two workers", needs=procs)
         out = tmp_path / "res"
-        result = {}
-        runner = threading.Thread(target=lambda: result.update(
-            run_study(path, scheduler=address, console=QUIET, out=out)))
+        runner = _StudyThread(path, scheduler=address, console=QUIET, out=out)
         runner.start()
-        _wait_for(lambda: _stored(out) >= 2, 60, "the first samples")
+        _wait_until(lambda: _stored(out) >= 2, "the first samples", needs=[runner, *procs])
         procs[1].send_signal(signal.SIGKILL)
         killed_at = _stored(out)
-        runner.join(timeout=120)
-        assert not runner.is_alive()
+        # the study ends once the survivor has taken over the lost work; it could not without the
+        # scheduler or that worker, so the wait fails instead of hanging if either of them ends
+        while runner.is_alive():
+            runner.join(timeout=0.5)            # polling interval, not a limit
+            assert not runner.is_alive() or not (_ended(procs[0]) or _ended(procs[2])), \
+                "the scheduler or the surviving worker ended during the study"
+        if runner.error is not None:
+            raise runner.error
         assert killed_at < 16                        # the worker died mid-study
         rows = read_store(out / "samples.sqlite")
         assert [r["sample_id"] for r in rows] == list(range(16))      # the plan, each sample once
-        assert result["complete"] and _csv(out / "samples.csv") == reference
+        assert runner.summary["complete"] and _csv(out / "samples.csv") == reference
     finally:
-        for p in reversed(procs):
+        for p in reversed(procs):       # SIGKILL always ends a process, so the waits return
             if p.poll() is None:
-                p.terminate()
-                try:
-                    p.wait(timeout=20)
-                except subprocess.TimeoutExpired:
-                    p.kill()
+                p.kill()
+            p.wait()
 
 
+@pytest.mark.slow
 def test_interrupted_study_continues_without_loss_or_repeat(stiffness_reference, tmp_path):
     path, reference = stiffness_reference
     out = tmp_path / "res"
     code = f"from clutchfe.study import run_study; run_study({str(path)!r}, workers=1, out={str(out)!r})"
-    proc = subprocess.Popen([sys.executable, "-c", code], stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
+    # stderr to a file, not a pipe nobody reads while waiting: a full pipe would stall the child
+    with open(tmp_path / "child.err", "wb") as err:
+        proc = subprocess.Popen([sys.executable, "-c", code], stdout=subprocess.DEVNULL, stderr=err)
     try:
-        _wait_for(lambda: _stored(out) >= 3, 90, "the first samples")
+        _wait_until(lambda: _stored(out) >= 3, "the first samples", needs=[proc],
+                    detail=lambda: (tmp_path / "child.err").read_text(errors="replace")[-2000:])
         proc.send_signal(signal.SIGINT)              # Ctrl-C
-        proc.wait(timeout=60)
+        proc.wait()
     finally:
         if proc.poll() is None:
             proc.kill()
@@ -368,8 +416,9 @@ def test_interrupted_study_continues_without_loss_or_repeat(stiffness_reference,
         run_study(changed, workers=1, console=QUIET, out=out)
 
 
+@pytest.mark.slow
 def test_study_command_runs_and_rejects_bad_files(tmp_path, capsys):
-    from clutchfe.cli import main
+    from clutchfe._cli import main
     path = _study(tmp_path, CONE, {"vary": [{"key": "interface.friction_coefficient",
                                               "values": [0.15, 0.3]}]}, name="cli")
     out = tmp_path / "out"

@@ -19,6 +19,7 @@ def suite(tmp_path_factory):
     return rows, passed, out
 
 
+@pytest.mark.slow
 def test_every_case_passes_with_a_named_source(suite):
     rows, passed, _ = suite
     failed = [(r.case, r.quantity, r.error, r.tolerance) for r in rows if not r.passed]
@@ -32,6 +33,7 @@ def test_every_case_passes_with_a_named_source(suite):
     assert len(rows) >= 15
 
 
+@pytest.mark.slow
 def test_table_files_match_the_rows(suite):
     rows, passed, out = suite
     data = json.loads((out / "verification.json").read_text())
@@ -41,6 +43,7 @@ def test_table_files_match_the_rows(suite):
     assert len(csv_lines) == len(rows) + 1 and csv_lines[0].startswith("case,quantity,computed")
 
 
+@pytest.mark.slow
 def test_printer_shows_every_row_and_the_count(suite):
     rows, passed, _ = suite
     buf = io.StringIO()
@@ -81,7 +84,8 @@ def test_one_registry_entry_adds_a_case():
 
 def test_coarser_meshes_scale_every_size():
     from clutchfe.case import case_from_dict
-    from conftest import CONE
+
+    from tests.helpers.data import CONE
 
     case = case_from_dict(CONE)
     coarse = coarser_case(case, 1.5 ** 2)

@@ -8,16 +8,15 @@ import tomllib
 import numpy as np
 import pytest
 
-from clutchfe import pipeline
+from clutchfe import plan
 from clutchfe.case import case_from_dict, load_case
-from clutchfe.cli import main
+from clutchfe._cli import main
 from clutchfe.comparison import compare
 from clutchfe.fem.wear import wear_in
-from clutchfe.pipeline import solved_case
-from clutchfe.wear import WEAR_CSV_COLUMNS, add_wear_to_run, sliding_per_engagement_rad
+from tests.helpers.solving import solved_case
+from clutchfe.analyses.wear import WEAR_CSV_COLUMNS, sliding_per_engagement_rad
 
-from conftest import PLATE, ROOT, write_toml
-from test_pipeline import _with
+from tests.helpers.data import PLATE, ROOT, with_tables, write_toml
 
 DEMO = ROOT / "cases" / "cone_capstan_wearin.toml"
 K = 2e-6        # mm^3/(N m); the worn-in state does not depend on it, only the path's scale
@@ -42,7 +41,7 @@ def test_winkler_lining_wears_to_uniform_wear_outer_radius_first():
     # a plate (uniform-wear method, Shigley's clutch chapter).  On a Winkler layer each node
     # relaxes at a rate proportional to its sliding speed, so the outer radius settles first.
     stiff = {"youngs_modulus": 4e7}
-    data = _with(PLATE, lining={"youngs_modulus": 400.0, "thickness": 1.0}, pressure_plate=stiff,
+    data = with_tables(PLATE, lining={"youngs_modulus": 400.0, "thickness": 1.0}, pressure_plate=stiff,
                  disc=stiff, counter_plate=stiff)
     solved = solved_case(case_from_dict(data))
     path = wear_in(solved.solver, K, max_steps=1000)
@@ -124,10 +123,9 @@ def test_target_volume_and_lining_limit_stop_the_run(cone, cone_path):
 @pytest.fixture(scope="module")
 def demo_run(tmp_path_factory, monkeypatch_module):
     # a shorter duty than the demo's so the run ends before steady state
-    data = _with(tomllib.loads(DEMO.read_text(encoding="utf-8")), wear={"engagements": 8000})
+    data = with_tables(tomllib.loads(DEMO.read_text(encoding="utf-8")), wear={"engagements": 8000})
     folder = tmp_path_factory.mktemp("wear")
     case = write_toml(folder / "wear_case.toml", data)
-    monkeypatch_module.setattr(pipeline, "ANALYSES", [add_wear_to_run])
     assert main(["run", str(case), "--out", str(folder / "out")]) == 0
     return data, folder / "out"
 
@@ -184,7 +182,7 @@ def test_run_with_a_wear_table_writes_the_wear_results(demo_run):
         assert (out / picture).stat().st_size > 10_000
 
 
-def test_run_without_a_wear_table_does_no_wear(tmp_path, cone):
-    summary = {}
-    add_wear_to_run(cone, summary, tmp_path)
-    assert summary == {} and not list(tmp_path.iterdir())
+def test_run_without_a_wear_table_does_no_wear():
+    result = plan.analyse(case_from_dict(PLATE), fields=False)
+    assert result.wear is None
+    assert not any(k.endswith("worn_in") or k.startswith("wear_") for k in plan.summary_of(result))

@@ -11,8 +11,7 @@ import numpy as np
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
 
-from .report import input_column
-from .spec import Study
+from .spec import Study, input_column
 
 TORQUE_LABEL = "FE torque capacity [N·m]"
 CURVE_OUTPUTS = (("torque_fe_Nm", TORQUE_LABEL), ("capacity_position", "capacity position ξ [-]"),

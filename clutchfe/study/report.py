@@ -13,8 +13,11 @@ from pathlib import Path
 import numpy as np
 from scipy import stats
 
-from ..results import clean_json, versions, write_json
-from .spec import OUTPUTS, Study, case_key
+from ..output.folders import clean_json, write_json
+from ..comparison import hand_of
+from ..provenance import CAUTION, __version__, versions
+from .plots import draw_all
+from .spec import OUTPUTS, Study, input_column
 
 CONFIDENCE = 0.95
 QUANTILES = (0.05, 0.5, 0.95)
@@ -29,13 +32,6 @@ def wilson_interval(k: int, n: int, confidence: float = CONFIDENCE) -> tuple[flo
     centre = (p + z * z / (2 * n)) / (1 + z * z / n)
     half = z / (1 + z * z / n) * math.sqrt(p * (1 - p) / n + z * z / (4 * n * n))
     return max(0.0, centre - half), min(1.0, centre + half)
-
-
-def input_column(key: str) -> str:
-    """CSV column of a varied case key, with its unit (N/mm -> N_per_mm, N·m -> Nm)."""
-    unit = case_key(key).unit
-    slug = unit.replace("/", "_per_").replace("·", "").replace("³", "3").replace("(", "").replace(")", "")
-    return f"{key}_{slug}" if unit else key
 
 
 def table_rows(study: Study, rows: list[dict]) -> tuple[list[str], list[dict]]:
@@ -114,9 +110,6 @@ def write_parquet(path: Path, columns: list[str], rows: list[dict]) -> None:
 
 
 def summary_of(study: Study, rows: list[dict], run: dict, limit) -> dict:
-    from .. import __version__
-    from ..pipeline import CAUTION, hand_of
-
     done = [r for r in rows if r["status"] == "done"]
     failed = [r for r in rows if r["status"] == "failed"]
     base = study.base_case
@@ -153,8 +146,6 @@ def summary_of(study: Study, rows: list[dict], run: dict, limit) -> dict:
 
 
 def write_results(folder: Path, study: Study, store, run: dict, console) -> dict:
-    from .plots import draw_all
-
     rows = store.rows()
     columns, flat = table_rows(study, rows)
     write_csv(folder / "samples.csv", columns, flat)

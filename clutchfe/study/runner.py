@@ -20,7 +20,7 @@ from rich.console import Console
 from rich.progress import BarColumn, Progress, TextColumn, TimeElapsedColumn
 
 from ..case import CaseError
-from ..results import check_output_folder, folder_lock, write_marker
+from ..output.folders import check_output_folder, folder_lock, write_marker
 from .evaluate import failure_reason, group_key, sample_case, solve_chunk
 from .limits import find_limit
 from .sampling import plan

@@ -14,7 +14,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..case import Case, CaseError, load_case
-from ..results import label_problem, safe_label
+from ..names import label_problem, safe_label
 from ..schema import SCHEMA, Key, describe_range
 
 DISTRIBUTIONS = {                       # distribution -> its parameters
@@ -39,11 +39,14 @@ OUTPUTS = {
     "design_torque_Nm": "required torque x service factor",
     "peak_pressure_over_allowable": "peak pressure / lining allowable pressure",
     "engagement_force_N": "axial force to push the cone home",
+    # the analyses a base case asks for run on every sample (blank where they do not apply)
+    "torque_worn_in_Nm": "FE torque capacity after the wear-in ([wear] in the base case)",
+    "capacity_position_worn_in": "xi after the wear-in",
+    "peak_pressure_worn_in_MPa": "peak contact pressure after the wear-in",
+    "tilt_moment_Nm": "moment on the guidance of a tilted or offset pressed part",
+    "open_area_fraction": "share of the friction face open (tilted or offset case)",
 }
 CORE_OUTPUTS = ("torque_fe_Nm", "capacity_position", "peak_pressure_MPa", "effective_radius_mm")
-# Not solvable by the axisymmetric model yet (pipeline.solved_case refuses them); drop from
-# this list when the non-axisymmetric solve lands.
-NOT_YET = ("misalignment.axis_tilt", "misalignment.radial_offset")
 TOP_KEYS = ("name", "description", "base_case", "method", "samples", "seed", "outputs", "vary", "limit")
 MAX_SAMPLES = 1_000_000
 
@@ -191,9 +194,6 @@ def _vary(entry: dict, k: int, base: Case | None, problems: list[str]):
     if base is not None and base.kind not in spec.kinds:
         problems.append(f"{where}.key = {full!r}: belongs to {' or '.join(spec.kinds)} cases; the base case is "
                         f"kind = {base.kind!r}")
-        return None
-    if full in NOT_YET:
-        problems.append(f"{where}.key = {full!r}: needs the non-axisymmetric solve, not in this version")
         return None
     if full.endswith("_stiffness") and base is not None and base.support.type != "springs":
         problems.append(f"{where}.key = {full!r}: the base case's support.type = {base.support.type!r} ignores it; "
@@ -346,7 +346,7 @@ def _limit(entry, base: Case | None, problems: list[str]) -> Limit | None:
     ignored = full.endswith("_stiffness") and base is not None and base.support.type != "springs" \
         if isinstance(full, str) else False
     if spec is None or spec.kind is not float or (base is not None and base.kind not in spec.kinds) \
-            or full in NOT_YET or ignored:
+            or ignored:
         problems.append(f"limit.key = {full!r}: allowed: a numeric case key of this case kind, e.g. "
                         "misalignment.cone_angle_mismatch, misalignment.coning, support.axial_stiffness")
         return None
@@ -375,3 +375,10 @@ def _limit(entry, base: Case | None, problems: list[str]) -> Limit | None:
             problems.append(f"limit.criterion = {criterion!r}: the base case gives no {need}; set it there")
             return None
     return Limit(full, low, high, criterion, steps)
+
+
+def input_column(key: str) -> str:
+    """CSV column of a varied case key, with its unit (N/mm -> N_per_mm, N·m -> Nm)."""
+    unit = case_key(key).unit
+    slug = unit.replace("/", "_per_").replace("·", "").replace("³", "3").replace("(", "").replace(")", "")
+    return f"{key}_{slug}" if unit else key

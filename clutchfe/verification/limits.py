@@ -6,11 +6,13 @@ comparison together.
 """
 from __future__ import annotations
 
-import copy
 import math
 
 import numpy as np
 
+from ..case import case_from_dict, with_tables
+from ..comparison import compare_solved
+from ..solve import SolveService
 from .checks import Check, absolute, relative
 
 WINKLER_SOURCE = "Johnson 1985, §5.8 (elastic foundation)"
@@ -26,31 +28,30 @@ TEST_CONE = {
 }
 
 
-def _with(data: dict, **tables) -> dict:
-    data = copy.deepcopy(data)
-    for table, values in tables.items():
-        data.setdefault(table, {}).update(values)
-    return data
-
-
 def _rigid_bodies(data: dict) -> dict:
     stiff = {"youngs_modulus": STIFF_BODIES * LINING_E}
-    return _with(data, lining={"youngs_modulus": LINING_E}, cone=stiff, cup=stiff)
+    return with_tables(data, lining={"youngs_modulus": LINING_E}, cone=stiff, cup=stiff)
+
+
+class _Solved:
+    """A solved case and its comparison (``result``), as these checks read them."""
+
+    def __init__(self, case):
+        self.solved = SolveService().solve(case)
+        self.fe = self.solved.fe
+        self.result = compare_solved(self.solved)
 
 
 def _solve(data: dict):
-    from ..case import case_from_dict
-    from ..pipeline import solved_case
     case = case_from_dict(data)
-    return case, solved_case(case)
+    return case, _Solved(case)
 
 
 def thin_lining_limit() -> list[Check]:
     """A lining 8 x thinner than the default between rigid bodies: p -> uniform, ξ -> 1."""
-    from ..case import case_from_dict
     data = _rigid_bodies(TEST_CONE)
     thin = case_from_dict(data).lining.thickness / 8.0
-    case, solved = _solve(_with(data, lining={"thickness": thin}))
+    case, solved = _solve(with_tables(data, lining={"thickness": thin}))
     r = solved.result
     name = f"thin lining on rigid bodies (t = {thin:g} mm)"
     return [
@@ -62,7 +63,7 @@ def thin_lining_limit() -> list[Check]:
 
 def linear_gap() -> list[Check]:
     """Rigid-backed 1 mm lining with a 0.02° cone-angle mismatch: p falls linearly along the slant."""
-    data = _with(_rigid_bodies(TEST_CONE), lining={"thickness": 1.0}, misalignment={"cone_angle_mismatch": 0.02})
+    data = with_tables(_rigid_bodies(TEST_CONE), lining={"thickness": 1.0}, misalignment={"cone_angle_mismatch": 0.02})
     case, solved = _solve(data)
     itf = solved.fe.interfaces[0]
     t = case.lining.thickness
@@ -85,9 +86,9 @@ def linear_gap() -> list[Check]:
 def load_linearity() -> list[Check]:
     """The invented cone at W and 2W, and at μ and 2μ: T doubles, ξ stays."""
     _, ref = _solve(TEST_CONE)
-    _, two_w = _solve(_with(TEST_CONE, load={"axial_force": 2 * TEST_CONE["load"]["axial_force"]}))
+    _, two_w = _solve(with_tables(TEST_CONE, load={"axial_force": 2 * TEST_CONE["load"]["axial_force"]}))
     mu = TEST_CONE["interface"]["friction_coefficient"]
-    _, two_mu = _solve(_with(TEST_CONE, interface={"friction_coefficient": 2 * mu}))
+    _, two_mu = _solve(with_tables(TEST_CONE, interface={"friction_coefficient": 2 * mu}))
     name = "conforming cone in full contact"
     t = ref.result["torque_fe_Nm"]
     return [

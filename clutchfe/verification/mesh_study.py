@@ -11,6 +11,7 @@ from __future__ import annotations
 import dataclasses
 import math
 
+from ..comparison import compare_solved
 from ..gci import grid_convergence
 
 # (summary key, label with unit, integrated: counts for the verdict)
@@ -44,23 +45,25 @@ def face_spacing_mm(section, mesh) -> float:
     return length / intervals
 
 
-def _mesh_row(solved, level: int) -> dict:
+def _mesh_row(solved, comparison, level: int) -> dict:
     m = solved.case.mesh
     return {"level": level, "name": ("fine (this run)", "medium", "coarse")[level],
             "interface_element_size_mm": m.interface_element_size, "edge_element_size_mm": m.edge_element_size,
             "element_size_mm": m.element_size, "lining_layers": m.lining_layers,
             "triangles": int(len(solved.mesh.triangles)), "nodes": int(len(solved.mesh.points)),
             "face_spacing_mm": face_spacing_mm(solved.section, solved.mesh),
-            **{key: float(solved.result[key]) for key, _, _ in QUANTITIES}}
+            **{key: float(comparison[key]) for key, _, _ in QUANTITIES}}
 
 
-def mesh_study(solved, ratio: float | None = None) -> dict:
-    """Three meshes (the run's and two coarser), observed order, extrapolation and GCI per quantity."""
-    from ..pipeline import solved_case
-
+def mesh_study(solved, comparison, service, ratio: float | None = None) -> dict:
+    """Three meshes (the run's and two coarser, solved by the same ``service``), observed order,
+    extrapolation and GCI per quantity."""
     r = float(ratio or solved.case.verification.refinement_ratio)
-    runs = [solved] + [solved_case(coarser_case(solved.case, r ** k)) for k in (1, 2)]
-    meshes = [_mesh_row(s, k) for k, s in enumerate(runs)]
+    runs = [(solved, comparison)]
+    for k in (1, 2):
+        coarse = service.solve(coarser_case(solved.case, r ** k), fields=False)
+        runs.append((coarse, compare_solved(coarse)))
+    meshes = [_mesh_row(s, c, k) for k, (s, c) in enumerate(runs)]
     h = [m["face_spacing_mm"] for m in meshes]
     n = [m["triangles"] for m in meshes]
     r21, r32 = h[1] / h[0], h[2] / h[1]

@@ -77,7 +77,8 @@ def _registry_key() -> tuple:
 
 
 def write_table(folder: Path, rows: list[Check], passed: bool, seconds: float) -> None:
-    from ..results import versions, write_json
+    from ..output.folders import write_json
+    from ..provenance import versions
 
     folder.mkdir(parents=True, exist_ok=True)
     write_json(folder / "verification.json", {

@@ -4,7 +4,7 @@ Prints, for the default mesh and for about 4x the elements: DOFs, assembly time,
 one linear elastic solve, the whole contact solve, their ratio (design.md §8 target
 <= 1.5) and peak memory.  Ratios are measured in this one run; nothing is asserted.
 
-    python3 tests/benchmarks/bench_contact.py
+    python3 -m tests.benchmarks.bench_contact      (from the repository root)
 """
 from __future__ import annotations
 
@@ -16,7 +16,8 @@ from pathlib import Path
 from clutchfe.case import case_from_dict, load_case
 from clutchfe.fem import linear_solve, solve
 from clutchfe.geometry import mesh_section
-from clutchfe.pipeline import fe_model_of, section_of
+from clutchfe.solve import fe_model_of
+from clutchfe.plan import section_of
 
 DEMO = Path(__file__).resolve().parents[2] / "cases" / "cone_capstan.toml"
 
@@ -59,7 +60,7 @@ def main() -> None:
     print(f"peak memory (resident, whole run): {peak_mib:.0f} MiB")
 
     t0 = time.perf_counter()
-    from clutchfe.cli import main as cli
+    from clutchfe._cli import main as cli
     import tempfile
     with tempfile.TemporaryDirectory() as tmp:
         cli(["run", str(DEMO), "--out", tmp + "/demo"])

@@ -1,15 +1,12 @@
 """Contact solve versus one linear elastic solve of the same mesh (design.md §8:
-target ratio <= 1.5).  Prints ratios measured in this run; run with
-``python tests/benchmarks/bench_contact_small.py [h]``."""
+target ratio <= 1.5).  Prints ratios measured in this run; run from the repository root with
+``python3 -m tests.benchmarks.bench_contact_small [h]``."""
 import sys
 import time
-from pathlib import Path
 
+from clutchfe.fem import FaceLoad, SpringSupport, linear_solve, solve
 
-sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "fem"))
-from fem_meshes import Section, graded  # noqa: E402
-
-from clutchfe.fem import FaceLoad, SpringSupport, linear_solve, solve  # noqa: E402
+from tests.helpers.models import Section, graded
 
 
 def hertz_model(h):

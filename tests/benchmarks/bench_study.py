@@ -1,7 +1,8 @@
 """Study throughput (design.md §8; issue: 1000 misalignment/load samples on one geometry in under a
 minute on 2 cores, and >= 1.7x from 1 to 2 workers on a study that varies stiffness).
 
-Prints figures measured in this run, no asserts:  ``python tests/benchmarks/bench_study.py``.
+Prints figures measured in this run, no asserts:  ``python3 -m tests.benchmarks.bench_study``
+(from the repository root).
 Times are wall clock of run_study, cluster start-up included (printed separately as the
 time of an empty study, so the solve share can be read off).
 """

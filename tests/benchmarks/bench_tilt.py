@@ -5,22 +5,17 @@ face open): harmonic solve time, 3D reference time, their ratio (target >= 20x a
 accuracy: the accuracy of each against the finest 3D model is printed beside it), and for
 those and the demo cases the time of one extra tilt value reusing the condensed compliance
 (target: milliseconds), cold and warm-started from the previous tilt.  Ratios from one run;
-no asserts.
+no asserts.  Run from the repository root: ``python3 -m tests.benchmarks.bench_tilt``.
 """
-import sys
 import time
-from pathlib import Path
 
 import numpy as np
 
-sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
-from test_harmonic import lined_blocks  # noqa: E402
-from test_tilt import coarse_stiff_cone  # noqa: E402
+from clutchfe.fem.solid3d import Solid3d
+from clutchfe.fem.tilted import TiltedContactSolver
 
-from clutchfe.fem.solid3d import Solid3d  # noqa: E402
-from clutchfe.fem.tilted import TiltedContactSolver  # noqa: E402
-
-ROOT = Path(__file__).resolve().parents[2]
+from tests.helpers.data import ROOT
+from tests.helpers.models import coarse_stiff_cone, lined_blocks
 
 
 def torque(interfaces):
@@ -69,15 +64,20 @@ def compare(label, model, pressed, tilt, layers):
 
 
 def demo(name, tilt=None):
-    from clutchfe import tilt as tilt_stage
+    from dataclasses import replace
+
     from clutchfe.case import load_case
+    from clutchfe.solve import SolveService
     case = load_case(ROOT / "cases" / name)
+    if tilt is not None:
+        case = replace(case, misalignment=replace(case.misalignment, axis_tilt=tilt))
     t0 = time.perf_counter()
-    res = tilt_stage.solve_tilted(case, tilt_deg=tilt)
+    solved = SolveService().solve(case, fields=False)
     t_all = time.perf_counter() - t0
-    cold, warm = extra_tilt(res.solver, res.axis_tilt_deg)
-    k, M = res.solver.op.shape
-    print(f"demo {name} (tilt {res.axis_tilt_deg:g} deg, {k} x {M} grid): first solve incl. mesh and "
+    solver = solved.prepared.tilted(int(case.mesh.angular_divisions))
+    cold, warm = extra_tilt(solver, case.misalignment.axis_tilt)
+    k, M = solver.op.shape
+    print(f"demo {name} (tilt {case.misalignment.axis_tilt:g} deg, {k} x {M} grid): first solve incl. mesh and "
           f"condensation {t_all:.2f} s; extra tilt {cold:.1f} ms cold, {warm:.1f} ms warm")
 
 

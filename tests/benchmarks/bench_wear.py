@@ -1,7 +1,8 @@
 """Full Archard wear-in of the cone demo versus one contact solve of it (issue 5 target:
 the whole wear-in <= 20 contact solves' worth, thanks to the condensation done once).
 Prints times and ratios measured in this run; run with
-``python tests/benchmarks/bench_wear.py [case.toml]``."""
+``python3 -m tests.benchmarks.bench_wear [case.toml]`` from the
+repository root."""
 import sys
 import timeit
 from pathlib import Path
@@ -9,7 +10,8 @@ from pathlib import Path
 from clutchfe import fem
 from clutchfe.case import load_case
 from clutchfe.fem.wear import wear_in
-from clutchfe.pipeline import fe_model_of, section_of
+from clutchfe.solve import fe_model_of
+from clutchfe.plan import section_of
 from clutchfe.geometry import mesh_section
 
 ROOT = Path(__file__).resolve().parents[2]

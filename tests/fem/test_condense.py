@@ -9,7 +9,8 @@ from clutchfe.fem.condense import condense
 from clutchfe.fem.pairing import gap_operator, pair_face
 from clutchfe.fem.solve import Prepared, _condensation
 from clutchfe.geometry import mesh_section
-from clutchfe.pipeline import fe_model_of, section_of
+from clutchfe.solve import fe_model_of
+from clutchfe.plan import section_of
 
 CONE = {"kind": "cone",
         "interface": {"inner_radius": 40.0, "outer_radius": 50.0, "semi_cone_angle": 20.0,

@@ -1,11 +1,12 @@
 """Unilateral contact against closed forms and the contact conditions themselves."""
 import numpy as np
 import pytest
-from fem_meshes import Section
 
 from clutchfe.fem import ContactError, FaceLoad, RingLoad, SpringSupport, solve
 from clutchfe.verification.contact import (HERTZ_DEPTH, HERTZ_H, HERTZ_R, axis_settlement_half_space,
                                           e_star, hertz_model, punch_model)
+
+from tests.helpers.models import Section
 
 E, NU = 210000.0, 0.3
 RIGID_BASE = SpringSupport("low_bottom", axial_stiffness=None, radial_stiffness=0.0)

@@ -1,10 +1,11 @@
 """Axisymmetric elasticity against closed forms (no contact)."""
 import numpy as np
 import pytest
-from fem_meshes import Section, graded
 
 from clutchfe.fem import FaceLoad, SpringSupport, solve
 from clutchfe.verification.solids import LAME_BORE, LAME_OUTER, LAME_PRESSURE, lame_closed_form, lame_model
+
+from tests.helpers.models import Section, graded
 
 E, NU = 210000.0, 0.3
 

@@ -8,7 +8,8 @@ import pytest
 from clutchfe.case import case_from_dict
 from clutchfe.fem import ContactSolver, solve
 from clutchfe.geometry import mesh_section
-from clutchfe.pipeline import fe_model_of, section_of
+from clutchfe.solve import fe_model_of
+from clutchfe.plan import section_of
 
 CONE = {"kind": "cone",
         "interface": {"inner_radius": 40.0, "outer_radius": 50.0, "semi_cone_angle": 20.0,

@@ -1,25 +1,20 @@
-"""Comparison stage: FE contact pressure against the two classical hand methods.
+"""Comparison stage: the FE contact pressure against the two classical hand methods.
 
 Pure functions on plain data; no FE, no files.  Units inside: mm, N, MPa (so torque
-comes out in N·mm and is reported in N·m).
-
-Hand methods (source: Shigley's Mechanical Engineering Design, clutch chapter, uniform-
-pressure and uniform-wear methods for disk and cone clutches; Juvinall & Marshek,
-Fundamentals of Machine Component Design, clutch chapter):
-  uniform pressure  p = W / (pi (r2^2 - r1^2)),   R_up = (2/3)(r2^3 - r1^3)/(r2^2 - r1^2)
-  uniform wear      p r = const, p_max = W / (2 pi r1 (r2 - r1)),   R_uw = (r1 + r2)/2
-  torque            T = n mu W R / sin(alpha)       (alpha = 90 deg for a plate)
-On a cone the pressure is normal to the slant; with dA = 2 pi r ds and ds = dr / sin(alpha)
-the axial resultant of a normal pressure p is  int p sin(alpha) dA = int p 2 pi r dr, so the
-normal pressure of each method has the same value as on a plate of the same r1, r2, W.
+comes out in N·mm and is reported in N·m).  The hand methods and their sources are in
+hand.py.  FE torque: T = n mu sum(f_i r_i) over the interface nodes (f the normal nodal
+force), R_eff = T sin(alpha) / (n mu W), and the capacity position
+xi = (T_fe - T_uw) / (T_up - T_uw): 1 = uniform pressure, 0 = uniform wear.
 """
 from __future__ import annotations
 
 import math
 from collections.abc import Mapping
-from dataclasses import asdict, dataclass
+from dataclasses import dataclass, fields
 
 import numpy as np
+
+from .hand import HandCapacity, as_hand_capacity, finite, radius_gap_mm, require
 
 # A nodal force this far below zero (relative to the surface's total) is solver round-off,
 # not tension; anything more negative means the FE result is not a contact solution.
@@ -33,145 +28,6 @@ _MATCH = 5e-5
 _POSITION_UNCERTAINTY_WARN = 0.05
 
 
-@dataclass(frozen=True)
-class HandCapacity:
-    inner_radius_mm: float
-    outer_radius_mm: float
-    semi_cone_angle_deg: float
-    friction_coefficient: float
-    friction_surfaces: int
-    axial_force_N: float
-    uniform_pressure_MPa: float
-    radius_uniform_pressure_mm: float
-    torque_uniform_pressure_Nm: float
-    peak_pressure_uniform_wear_MPa: float
-    radius_uniform_wear_mm: float
-    torque_uniform_wear_Nm: float
-    engagement_force_N: float
-    self_locking: bool
-
-    def as_dict(self) -> dict:
-        return asdict(self)
-
-    @property
-    def sin_alpha(self) -> float:
-        return math.sin(math.radians(self.semi_cone_angle_deg))
-
-    def _inside(self, r_mm) -> np.ndarray:
-        r = np.asarray(r_mm, dtype=float)
-        return (r >= self.inner_radius_mm) & (r <= self.outer_radius_mm)
-
-    def pressure_uniform_pressure_MPa(self, r_mm) -> np.ndarray:
-        """Normal pressure of the uniform-pressure method at r (zero off the annulus)."""
-        return np.where(self._inside(r_mm), self.uniform_pressure_MPa, 0.0)
-
-    def pressure_uniform_wear_MPa(self, r_mm) -> np.ndarray:
-        """Normal pressure of the uniform-wear method, p = p_max r1 / r (zero off the annulus)."""
-        r = np.asarray(r_mm, dtype=float)
-        inside = self._inside(r)
-        safe_r = np.where(inside, r, self.inner_radius_mm)
-        p = self.peak_pressure_uniform_wear_MPa * self.inner_radius_mm / safe_r
-        return np.where(inside, p, 0.0)
-
-    def pressure_curves(self, samples: int = 201) -> dict:
-        r = np.linspace(self.inner_radius_mm, self.outer_radius_mm, samples)
-        return {
-            "r_mm": r,
-            "uniform_pressure_MPa": self.pressure_uniform_pressure_MPa(r),
-            "uniform_wear_MPa": self.pressure_uniform_wear_MPa(r),
-        }
-
-
-def _require(condition: bool, message: str) -> None:
-    if not condition:
-        raise ValueError(message)
-
-
-def _finite(name: str, value) -> float:
-    try:
-        x = float(value)
-    except (TypeError, ValueError):
-        raise ValueError(f"{name} must be a number, got {value!r}") from None
-    _require(math.isfinite(x), f"{name} must be finite, got {value!r}")
-    return x
-
-
-def uniform_pressure_MPa(inner_radius_mm: float, outer_radius_mm: float, axial_force_N: float) -> float:
-    return axial_force_N / (math.pi * (outer_radius_mm**2 - inner_radius_mm**2))
-
-
-def radius_uniform_pressure_mm(inner_radius_mm: float, outer_radius_mm: float) -> float:
-    # Factored form (2/3)(r1^2 + r1 r2 + r2^2)/(r1 + r2): no cancellation for narrow annuli.
-    r1, r2 = inner_radius_mm, outer_radius_mm
-    return 2.0 / 3.0 * (r1 * r1 + r1 * r2 + r2 * r2) / (r1 + r2)
-
-
-def radius_uniform_wear_mm(inner_radius_mm: float, outer_radius_mm: float) -> float:
-    return 0.5 * (inner_radius_mm + outer_radius_mm)
-
-
-def radius_gap_mm(inner_radius_mm: float, outer_radius_mm: float) -> float:
-    """R_up - R_uw = (r2 - r1)^2 / (6 (r1 + r2)), exact; the difference of the two radii
-    computed separately would lose most digits for a narrow annulus."""
-    r1, r2 = inner_radius_mm, outer_radius_mm
-    return (r2 - r1) ** 2 / (6.0 * (r1 + r2))
-
-
-def peak_pressure_uniform_wear_MPa(inner_radius_mm: float, outer_radius_mm: float, axial_force_N: float) -> float:
-    return axial_force_N / (2.0 * math.pi * inner_radius_mm * (outer_radius_mm - inner_radius_mm))
-
-
-def cot_deg(angle_deg: float) -> float:
-    # tan(90 - a) gives exactly 0 for a plate; cos/sin would leave 6e-17.
-    return math.tan(math.radians(90.0 - angle_deg))
-
-
-def engagement_force_N(axial_force_N: float, semi_cone_angle_deg: float, friction_coefficient: float) -> float:
-    """Axial force to push the cone home while it still slides axially: friction on the slant
-    opposes the approach, W_e = W (1 + mu cot alpha); a plate needs just W."""
-    return axial_force_N * (1.0 + friction_coefficient * cot_deg(semi_cone_angle_deg))
-
-
-def is_self_locking(semi_cone_angle_deg: float, friction_coefficient: float) -> bool:
-    """tan(alpha) < mu: friction holds the cone in after the force is removed (common practice)."""
-    return semi_cone_angle_deg < math.degrees(math.atan(friction_coefficient))
-
-
-def hand_capacity(inner_radius_mm, outer_radius_mm, semi_cone_angle_deg, friction_coefficient,
-                  friction_surfaces, axial_force_N) -> HandCapacity:
-    r1 = _finite("inner_radius_mm", inner_radius_mm)
-    r2 = _finite("outer_radius_mm", outer_radius_mm)
-    alpha = _finite("semi_cone_angle_deg", semi_cone_angle_deg)
-    mu = _finite("friction_coefficient", friction_coefficient)
-    w = _finite("axial_force_N", axial_force_N)
-    _require(r1 > 0.0, f"inner_radius_mm = {r1} must be > 0 (uniform-wear pressure is infinite on the axis)")
-    _require(r2 > r1, f"outer_radius_mm = {r2} must be greater than inner_radius_mm = {r1}")
-    _require(radius_gap_mm(r1, r2) > 0.0, f"annulus [{r1}, {r2}] mm is too narrow to tell the two methods apart")
-    _require(0.0 < alpha <= 90.0, f"semi_cone_angle_deg = {alpha} must be in (0, 90]; a plate is 90")
-    _require(mu > 0.0, f"friction_coefficient = {mu} must be > 0")
-    _require(w > 0.0, f"axial_force_N = {w} must be > 0")
-    n_float = _finite("friction_surfaces", friction_surfaces)
-    _require(n_float >= 1 and n_float == int(n_float),
-             f"friction_surfaces = {friction_surfaces!r} must be a whole number >= 1")
-    n = int(n_float)
-
-    sin_a = math.sin(math.radians(alpha))
-    r_up = radius_uniform_pressure_mm(r1, r2)
-    r_uw = radius_uniform_wear_mm(r1, r2)
-    return HandCapacity(
-        inner_radius_mm=r1, outer_radius_mm=r2, semi_cone_angle_deg=alpha,
-        friction_coefficient=mu, friction_surfaces=n, axial_force_N=w,
-        uniform_pressure_MPa=uniform_pressure_MPa(r1, r2, w),
-        radius_uniform_pressure_mm=r_up,
-        torque_uniform_pressure_Nm=n * mu * w * r_up / sin_a / 1000.0,
-        peak_pressure_uniform_wear_MPa=peak_pressure_uniform_wear_MPa(r1, r2, w),
-        radius_uniform_wear_mm=r_uw,
-        torque_uniform_wear_Nm=n * mu * w * r_uw / sin_a / 1000.0,
-        engagement_force_N=engagement_force_N(w, alpha, mu),
-        self_locking=is_self_locking(alpha, mu),
-    )
-
-
 # ---------------------------------------------------------------- FE surface data
 
 def _field(surface, names: tuple[str, ...], required: bool = True):
@@ -183,7 +39,7 @@ def _field(surface, names: tuple[str, ...], required: bool = True):
                 return surface[name]
         elif hasattr(surface, name):
             return getattr(surface, name)
-    _require(not required, f"surface data lacks {names[0]!r}")
+    require(not required, f"surface data lacks {names[0]!r}")
     return None
 
 
@@ -204,7 +60,7 @@ def surface_arrays(surface, index: int, hand: HandCapacity) -> dict:
     r = np.asarray(_field(surface, ("r_mm", "r")), dtype=float).ravel()
     p = np.asarray(_field(surface, ("pressure_MPa", "pressure")), dtype=float).ravel()
     f = np.asarray(_field(surface, ("normal_force_N", "normal_force")), dtype=float).ravel()
-    _require(r.size > 0, f"{name}: no nodes")
+    require(r.size > 0, f"{name}: no nodes")
     contact = _field(surface, ("in_contact",), required=False)
     area = _field(surface, ("tributary_area_mm2", "tributary_area"), required=False)
     contact = p > 0.0 if contact is None else np.asarray(contact, dtype=bool).ravel()
@@ -212,18 +68,18 @@ def surface_arrays(surface, index: int, hand: HandCapacity) -> dict:
 
     per_node = (("pressure_MPa", p), ("normal_force_N", f), ("in_contact", contact), ("tributary_area_mm2", area))
     for label, arr in per_node:
-        _require(arr.shape == r.shape, f"{name}: {label} has {arr.size} values for {r.size} radii")
+        require(arr.shape == r.shape, f"{name}: {label} has {arr.size} values for {r.size} radii")
     for label, arr in (("r_mm", r), ("pressure_MPa", p), ("normal_force_N", f), ("tributary_area_mm2", area)):
-        _require(bool(np.all(np.isfinite(arr))), f"{name}: {label} contains NaN or infinity")
+        require(bool(np.all(np.isfinite(arr))), f"{name}: {label} contains NaN or infinity")
     r1, r2 = hand.inner_radius_mm, hand.outer_radius_mm
     slack = _RADIUS_ROUNDOFF * r2
-    _require(bool(np.all((r >= r1 - slack) & (r <= r2 + slack))),
+    require(bool(np.all((r >= r1 - slack) & (r <= r2 + slack))),
              f"{name}: node radii {r.min():.6g}..{r.max():.6g} mm leave the friction annulus [{r1}, {r2}] mm")
     total = float(np.sum(np.abs(f)))
-    _require(total > 0.0, f"{name}: no normal force: the surface carries no load")
-    _require(bool(np.all(f >= -_TENSION_ROUNDOFF * total)),
+    require(total > 0.0, f"{name}: no normal force: the surface carries no load")
+    require(bool(np.all(f >= -_TENSION_ROUNDOFF * total)),
              f"{name}: tensile normal force {f.min():.6g} N: not a contact solution")
-    _require(bool(np.all(area >= 0.0)) and area.sum() > 0.0,
+    require(bool(np.all(area >= 0.0)) and area.sum() > 0.0,
              f"{name}: tributary areas must be >= 0 with a positive total")
     return {"name": name, "r": np.clip(r, r1, r2), "p": p, "f": np.clip(f, 0.0, None), "contact": contact, "area": area}
 
@@ -233,7 +89,7 @@ def faces_per_modelled_surface(n_modelled: int, friction_surfaces: int) -> int:
     force (a plate pack with spline drag neglected, common practice)."""
     if n_modelled == friction_surfaces:
         return 1
-    _require(n_modelled == 1,
+    require(n_modelled == 1,
              f"{n_modelled} FE surfaces for friction_surfaces = {friction_surfaces}: "
              "give one per face or a single representative face")
     return friction_surfaces
@@ -308,10 +164,10 @@ MARGIN_KEYS = ("required_torque_Nm", "service_factor", "capacity_margin_fe", "ca
 
 
 def _capacity_margins(torque_fe_Nm: float, hand: HandCapacity, required_torque_Nm, service_factor) -> dict:
-    required = _finite("required_torque_Nm", required_torque_Nm)
-    sf = _finite("service_factor", service_factor)
-    _require(required > 0.0, f"required_torque_Nm = {required} must be > 0")
-    _require(sf > 0.0, f"service_factor = {sf} must be > 0")
+    required = finite("required_torque_Nm", required_torque_Nm)
+    sf = finite("service_factor", service_factor)
+    require(required > 0.0, f"required_torque_Nm = {required} must be > 0")
+    require(sf > 0.0, f"service_factor = {sf} must be > 0")
     return {
         "required_torque_Nm": required,
         "service_factor": sf,
@@ -335,17 +191,6 @@ def _warnings(xi: float, xi_uncertainty: float, balance: float, torque_fe_Nm: fl
     return warnings
 
 
-def as_hand_capacity(hand) -> HandCapacity:
-    if isinstance(hand, HandCapacity):
-        return hand
-    _require(isinstance(hand, Mapping), "hand must be a HandCapacity or the mapping from HandCapacity.as_dict()")
-    keys = ("inner_radius_mm", "outer_radius_mm", "semi_cone_angle_deg", "friction_coefficient",
-            "friction_surfaces", "axial_force_N")
-    missing = [k for k in keys if k not in hand]
-    _require(not missing, f"hand data lacks {missing}")
-    return hand_capacity(*(hand[k] for k in keys))
-
-
 def _surface_summary(s: dict, hand: HandCapacity, faces: int, totals: tuple[float, float]) -> dict:
     axial = float(np.sum(s["f"])) * hand.sin_alpha
     torque = faces * hand.friction_coefficient * float(np.sum(s["f"] * s["r"])) / 1000.0
@@ -364,10 +209,76 @@ def _surface_summary(s: dict, hand: HandCapacity, faces: int, totals: tuple[floa
     }
 
 
-def compare(surfaces, hand, required_torque_Nm=None, service_factor=1.0) -> dict:
-    """Torque capacity from the FE contact forces against the two hand methods."""
+@dataclass(frozen=True)
+class Comparison(Mapping):
+    """The comparison stage's answer for one solved state (units in the names).
+
+    A typed record whose fields are read as attributes (``c.torque_fe_Nm``); it is also a
+    read-only mapping of every output key, the hand method's included (``c["torque_uniform_wear_Nm"]``),
+    which is how the summary, the study table and the report take it over unchanged.
+    """
+
+    hand: HandCapacity
+    torque_fe_Nm: float
+    capacity_position: float
+    capacity_position_uncertainty: float
+    effective_radius_mm: float
+    effective_radius_position: float
+    radius_uniform_pressure_position: float
+    radius_uniform_wear_position: float
+    torque_fe_over_uniform_wear: float
+    torque_fe_over_uniform_pressure: float
+    peak_pressure_MPa: float
+    peak_pressure_radius_mm: float
+    peak_pressure_surface: str
+    peak_pressure_over_uniform_wear_peak: float
+    mean_pressure_MPa: float
+    contact_area_fraction: float
+    axial_force_balance_error: float
+    faces_per_modelled_surface: int
+    surfaces: tuple
+    verdict: str
+    warnings: tuple
+    required_torque_Nm: float | None = None
+    service_factor: float | None = None
+    capacity_margin_fe: float | None = None
+    capacity_margin_uniform_pressure: float | None = None
+    capacity_margin_uniform_wear: float | None = None
+
+    def _keys(self) -> list[str]:
+        own = [f.name for f in fields(self) if f.name != "hand"]
+        return [k for k in self.hand.as_dict() if k not in own] + own
+
+    def __getitem__(self, key: str):
+        if key != "hand" and key in self.__dataclass_fields__:
+            return getattr(self, key)
+        if key in self.hand.__dataclass_fields__:
+            return getattr(self.hand, key)
+        raise KeyError(key)
+
+    def __iter__(self):
+        return iter(self._keys())
+
+    def __len__(self) -> int:
+        return len(self._keys())
+
+    def as_dict(self) -> dict:
+        """Every output key as a plain dict (lists for the per-surface and warning tuples)."""
+        out = dict(self.items())
+        out["surfaces"], out["warnings"] = list(self.surfaces), list(self.warnings)
+        return out
+
+
+def compare(surfaces, hand, required_torque_Nm=None, service_factor=1.0, peak=None,
+            contact_area_fraction=None) -> Comparison:
+    """Torque capacity from the FE contact forces against the two hand methods.
+
+    ``peak`` = (pressure MPa, radius mm, surface name) and ``contact_area_fraction`` replace
+    the values read from ``surfaces`` when the solve has a finer picture of them than the
+    surfaces carry (the (r, θ) grid of a tilted solve, whose surfaces are θ-summed rings).
+    """
     hand = as_hand_capacity(hand)
-    _require(len(surfaces) > 0, "no FE surfaces given")
+    require(len(surfaces) > 0, "no FE surfaces given")
     data = [surface_arrays(s, i, hand) for i, s in enumerate(surfaces)]
     faces = faces_per_modelled_surface(len(data), hand.friction_surfaces)
 
@@ -381,45 +292,34 @@ def compare(surfaces, hand, required_torque_Nm=None, service_factor=1.0) -> dict
     # A uniform scale error eps in the FE forces moves R_eff by eps R_eff; xi magnifies it.
     xi_uncertainty = abs(balance) * r_eff / radius_gap_mm(hand.inner_radius_mm, hand.outer_radius_mm)
 
-    peak_at = max(range(len(data)), key=lambda i: float(np.max(data[i]["p"])))
-    peak_node = int(np.argmax(data[peak_at]["p"]))
-    peak = float(data[peak_at]["p"][peak_node])
-    area_total = sum(float(np.sum(s["area"])) for s in data)
-    area_contact = sum(float(np.sum(s["area"][s["contact"]])) for s in data)
-
-    out = {
-        **hand.as_dict(),
-        "torque_fe_Nm": total_torque,
-        "capacity_position": xi,
-        "capacity_position_uncertainty": xi_uncertainty,
-        "effective_radius_mm": r_eff,
-        "effective_radius_position": position_on_annulus(r_eff, hand),
-        "radius_uniform_pressure_position": position_on_annulus(hand.radius_uniform_pressure_mm, hand),
-        "radius_uniform_wear_position": position_on_annulus(hand.radius_uniform_wear_mm, hand),
-        "torque_fe_over_uniform_wear": total_torque / hand.torque_uniform_wear_Nm - 1.0,
-        "torque_fe_over_uniform_pressure": total_torque / hand.torque_uniform_pressure_Nm - 1.0,
-        "peak_pressure_MPa": peak,
-        "peak_pressure_radius_mm": float(data[peak_at]["r"][peak_node]),
-        "peak_pressure_surface": data[peak_at]["name"],
-        "peak_pressure_over_uniform_wear_peak": peak / hand.peak_pressure_uniform_wear_MPa,
-        "mean_pressure_MPa": hand.uniform_pressure_MPa,
-        "contact_area_fraction": area_contact / area_total,
-        "axial_force_balance_error": balance,
-        "faces_per_modelled_surface": faces,
-        "surfaces": per_surface,
-        **dict.fromkeys(MARGIN_KEYS),  # stable key set: filled only with a required torque
-    }
+    if peak is None:
+        peak_at = max(range(len(data)), key=lambda i: float(np.max(data[i]["p"])))
+        peak_node = int(np.argmax(data[peak_at]["p"]))
+        peak = (float(data[peak_at]["p"][peak_node]), float(data[peak_at]["r"][peak_node]), data[peak_at]["name"])
+    if contact_area_fraction is None:
+        area_total = sum(float(np.sum(s["area"])) for s in data)
+        contact_area_fraction = sum(float(np.sum(s["area"][s["contact"]])) for s in data) / area_total
 
     sentences = [_assumption_sentence(xi, total_torque, hand), _radius_sentence(r_eff, hand)]
     warnings = _warnings(xi, xi_uncertainty, balance, total_torque, hand, sentences[0])
+    margins = {}
     if required_torque_Nm is not None:
         margins = _capacity_margins(total_torque, hand, required_torque_Nm, service_factor)
-        out.update(margins)
         sentences.append(_margin_sentence(margins))
         if margins["capacity_margin_fe"] < 0.0:
             warnings.append("WARNING: BY THE FE PRESSURE THE CLUTCH SLIPS: its capacity is below the required "
                             "torque times the service factor.")
-
-    out["verdict"] = " ".join(sentences + [w for w in warnings if w not in sentences])  # xi < 0 is said once
-    out["warnings"] = warnings
-    return out
+    return Comparison(
+        hand=hand, torque_fe_Nm=total_torque, capacity_position=xi, capacity_position_uncertainty=xi_uncertainty,
+        effective_radius_mm=r_eff, effective_radius_position=position_on_annulus(r_eff, hand),
+        radius_uniform_pressure_position=position_on_annulus(hand.radius_uniform_pressure_mm, hand),
+        radius_uniform_wear_position=position_on_annulus(hand.radius_uniform_wear_mm, hand),
+        torque_fe_over_uniform_wear=total_torque / hand.torque_uniform_wear_Nm - 1.0,
+        torque_fe_over_uniform_pressure=total_torque / hand.torque_uniform_pressure_Nm - 1.0,
+        peak_pressure_MPa=peak[0], peak_pressure_radius_mm=peak[1], peak_pressure_surface=peak[2],
+        peak_pressure_over_uniform_wear_peak=peak[0] / hand.peak_pressure_uniform_wear_MPa,
+        mean_pressure_MPa=hand.uniform_pressure_MPa, contact_area_fraction=contact_area_fraction,
+        axial_force_balance_error=balance, faces_per_modelled_surface=faces, surfaces=tuple(per_surface),
+        # xi < 0 is said once
+        verdict=" ".join(sentences + [w for w in warnings if w not in sentences]), warnings=tuple(warnings),
+        **margins)

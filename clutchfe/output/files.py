@@ -2,26 +2,22 @@
 from __future__ import annotations
 
 import csv
-import os
 from pathlib import Path
 
 import numpy as np
 from rich.markup import escape
 from rich.table import Table
 
-from .results import write_json
+from ..geometry import section_picture, write_mesh
+from .plots import effective_radius_bar, pressure_plot
 
 STRESS_LABEL = "von Mises [MPa]"
 
 
-def write_all(folder: Path, case, section, mesh, fe, result: dict, summary: dict,
-              axisymmetric: bool = True) -> None:
-    """The standard files.  A tilted solve has no (r, z) displacement field and its
-    pressure.csv (with theta) comes from the tilt stage, so those are left to it."""
-    from .geometry import section_picture, write_mesh
-    from .plots import effective_radius_bar, pressure_plot
-
-    write_json(folder / "summary.json", summary)
+def write_all(folder: Path, case, section, mesh, fe, result, axisymmetric: bool = True) -> None:
+    """The standard files and pictures (summary.json is the run plan's, written last).  A tilted
+    solve has no (r, z) displacement field and its pressure.csv (with theta) comes from the
+    tilt analysis, so those are left to it."""
     if axisymmetric:
         write_pressure_csv(folder / "pressure.csv", fe)
         write_solution_vtu(folder / "solution.vtu", mesh, fe)
@@ -79,11 +75,8 @@ def write_solution_vtu(path: Path, mesh, fe) -> None:
 
 def deformed_picture(path: Path, mesh, fe, title: str) -> None:
     """Deformed section (displacements magnified) coloured by von Mises stress, off-screen."""
-    # off-screen through EGL: no X server here, and the X window class warns on stderr
-    os.environ.setdefault("VTK_DEFAULT_OPENGL_WINDOW", "vtkEGLRenderWindow")
-    import pyvista as pv
+    import pyvista as pv        # here: it costs about a second to import
 
-    pv.OFF_SCREEN = True
     points = np.column_stack([mesh.points, np.zeros(len(mesh.points))])
     cells = np.hstack([np.full((len(mesh.triangles), 1), 3), mesh.triangles[:, :3]]).ravel()
     grid = pv.UnstructuredGrid(cells, np.full(len(mesh.triangles), pv.CellType.TRIANGLE), points)
@@ -108,7 +101,7 @@ def deformed_picture(path: Path, mesh, fe, title: str) -> None:
     plotter.close()
 
 
-def print_table(console, case, summary: dict, folder: Path) -> None:
+def print_table(console, case, summary: dict, folder: Path, extra_tables=()) -> None:
     table = Table(title=f"{case.name}: torque capacity (FE contact vs hand formulas)")
     table.add_column("quantity", no_wrap=True)
     table.add_column("FE", justify="right")
@@ -125,9 +118,8 @@ def print_table(console, case, summary: dict, folder: Path) -> None:
                       f"{100 * summary['capacity_margin_uniform_pressure']:+.1f}",
                       f"{100 * summary['capacity_margin_uniform_wear']:+.1f}")
     console.print(table)
-    if "torque_worn_in_Nm" in summary:
-        from .wear import wear_table
-        console.print(wear_table(summary))
+    for extra in extra_tables:          # the analyses' own tables (wear-in: new against worn in)
+        console.print(extra)
     console.print(f"capacity position xi = {summary['capacity_position']:.3f} (1 = uniform pressure, "
                   f"0 = uniform wear); contact over {100 * summary['contact_area_fraction']:.1f} % of the face; "
                   f"axial balance error {summary['axial_force_balance_error']:.1e}")
@@ -139,6 +131,6 @@ def print_table(console, case, summary: dict, folder: Path) -> None:
                       f"({summary['guidance']}): peak {summary['peak_pressure_MPa']:.4f} MPa at "
                       f"r = {summary['peak_pressure_r_mm']:.2f} mm, theta = {summary['peak_pressure_theta_deg']:.1f} deg; "
                       f"tilting moment on the guidance {summary['tilt_moment_Nm']:.2f} N·m", markup=False)
-    files = sorted(p.name for p in Path(folder).iterdir() if p.is_file()) if Path(folder).is_dir() else []
+    files = sorted(p.name for p in Path(folder).iterdir() if p.is_file() and not p.name.startswith(".")) if Path(folder).is_dir() else []
     console.print(f"results: {folder}/ ({', '.join(files)})", markup=False)
     console.print(f"caution: {summary['caution']}", markup=False, style="italic")

@@ -10,14 +10,14 @@ import numpy as np
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
 
-from clutchfe.comparison import HandCapacity, as_hand_capacity, surface_arrays
+from ..comparison import HandCapacity, as_hand_capacity, surface_arrays
 
 RADIUS_LABEL = "radius r [mm]"
 PRESSURE_LABEL = "contact pressure [MPa]"
 _MARKERS = ("o", "s", "^", "v", "D", "P", "X")
 
 
-def _new_figure(width_in: float, height_in: float) -> Figure:
+def new_figure(width_in: float, height_in: float) -> Figure:
     fig = Figure(figsize=(width_in, height_in), layout="constrained")
     FigureCanvasAgg(fig)
     return fig
@@ -31,7 +31,7 @@ def _annulus_margin_mm(hand: HandCapacity) -> float:
 def pressure_figure(surfaces, hand, xi: float, r_eff_mm: float, title_prefix: str) -> Figure:
     hand = as_hand_capacity(hand)
     r1, r2 = hand.inner_radius_mm, hand.outer_radius_mm
-    fig = _new_figure(7.0, 4.2)
+    fig = new_figure(7.0, 4.2)
     ax = fig.add_subplot()
     ax.axvspan(r1, r2, color="0.92", zorder=0, label=f"friction annulus [{r1:g}, {r2:g}] mm")
 
@@ -69,7 +69,7 @@ def pressure_plot(path, surfaces, hand, xi: float, r_eff_mm: float, title_prefix
 def effective_radius_figure(r1: float, r2: float, r_up: float, r_uw: float, r_eff: float) -> Figure:
     if not (np.isfinite([r1, r2, r_up, r_uw, r_eff]).all() and r2 > r1):
         raise ValueError(f"need finite radii with r1 < r2, got r1 = {r1}, r2 = {r2}")
-    fig = _new_figure(6.5, 2.0)
+    fig = new_figure(6.5, 2.0)
     ax = fig.add_subplot()
     ax.barh(0.0, r2 - r1, left=r1, height=0.6, color="0.88", edgecolor="0.3")
     # The two hand radii are often under 1 % of r2 apart: full-height ticks in distinct styles

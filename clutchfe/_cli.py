@@ -12,9 +12,13 @@ from pathlib import Path
 
 from rich.console import Console
 
+from . import plan
 from .case import load_case
-from .errors import EXIT_BUG, EXIT_INPUT, EXIT_INTERRUPTED, EXIT_OK, CaseError, PhysicsError
-from .results import check_output_folder
+from .schema import reference_markdown
+from .study import run_study
+from .verification import print_verification, run_verification
+from .errors import EXIT_BUG, EXIT_INPUT, EXIT_OK, CaseError, PhysicsError, exit_status
+from .output.folders import check_output_folder
 
 err = Console(stderr=True, highlight=False, soft_wrap=True)
 out = Console(highlight=False)
@@ -45,6 +49,9 @@ def _parser() -> argparse.ArgumentParser:
 
 
 def main(argv: list[str] | None = None) -> int:
+    # the process's global state is the command's to set, not the library's: pictures are
+    # drawn off-screen (VTK through EGL: no X server needed, and the X window class warns)
+    os.environ.setdefault("VTK_DEFAULT_OPENGL_WINDOW", "vtkEGLRenderWindow")
     parser = _parser()
     try:
         args = parser.parse_args(argv)
@@ -55,56 +62,50 @@ def main(argv: list[str] | None = None) -> int:
     except CaseError as exc:
         for problem in exc.problems:
             err.print(f"clutchfe: error: {problem}", markup=False)
-        return EXIT_INPUT
-    except KeyboardInterrupt:
+        return exit_status(exc)
+    except KeyboardInterrupt as exc:
         if getattr(args, "command", "") == "study":
             err.print("clutchfe: interrupted; finished samples are kept: run the same command again to "
                       "continue", markup=False)
         else:
             err.print("clutchfe: interrupted; nothing was written", markup=False)
-        return EXIT_INTERRUPTED
+        return exit_status(exc)
     except PhysicsError as exc:
         err.print(f"clutchfe: cannot solve: {exc}", markup=False)
-        return exc.exit_status
+        return exit_status(exc)
     except Exception as exc:  # noqa: BLE001 - the last line of defence: no traceback for users
         if os.environ.get("CLUTCHFE_DEBUG"):
             raise
         err.print(f"clutchfe: internal error (a bug, please report it with the case file): "
                   f"{type(exc).__name__}: {exc}", markup=False)
-        return EXIT_BUG
+        return exit_status(exc)
 
 
 def _dispatch(args) -> int:
     if args.command == "keys":
-        from .schema import reference_markdown
         out.print(reference_markdown(), markup=False)
         return EXIT_OK
     if args.command == "study":
-        from .study import run_study
         run_study(args.study, workers=args.workers, scheduler=args.scheduler, console=out, out=args.out)
         return EXIT_OK
     if args.command == "verify":
-        from .verification import print_verification, run_verification
         rows, passed = run_verification(args.out)
         print_verification(rows, passed, out)
         return EXIT_OK if passed else EXIT_BUG      # a failed check means the solver is wrong
-    from . import pipeline
-
     case = load_case(args.case)
     for warning in case.warnings:
         err.print(f"clutchfe: warning: {warning}", markup=False)
-    section = pipeline.section_of(case)
+    section = plan.section_of(case)
     if args.command == "check":
-        pipeline.print_check(case, section, out)
+        plan.print_check(case, section, out)
         return EXIT_OK
     folder = args.out or Path("results") / case.name
     check_output_folder(folder)     # before any work: never a long solve that cannot be written
     if args.command == "mesh":
-        pipeline.mesh_case(case, section, folder, out)
+        plan.mesh_case(case, section, folder, out)
         return EXIT_OK
-    pipeline.run_case(case, section, folder, out)
+    plan.run_case(case, folder, out)
     return EXIT_OK
-
 
 if __name__ == "__main__":      # pragma: no cover
     sys.exit(main())

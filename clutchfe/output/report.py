@@ -1,16 +1,16 @@
 """report.html of a run: everything a design review needs to accept or reject the design assumption.
 
-Registered in ``pipeline.REPORTS``; runs inside the atomic results folder after the standard files.
-It adds the mesh study (three meshes, GCI) and the verification table to summary.json, then writes
-one self-contained page (and report.pdf when WeasyPrint is installed: it lays out HTML without a
-browser).
+The run plan calls it last, inside the atomic results folder, with the finished summary (the
+mesh study and the verification table included): one self-contained page, and report.pdf when
+WeasyPrint is installed (it lays out HTML without a browser).
 """
 from __future__ import annotations
 
 from pathlib import Path
 
+from ..schema import SCHEMA
+from ..verification.table import format_error, format_tolerance
 from .report_html import esc, num, page, picture, sig, table
-from .results import write_json
 
 ASSUMPTIONS = (
     "Axisymmetric linear elasticity of every body in the (r, z) section, quadratic triangles; the friction "
@@ -27,33 +27,13 @@ ASSUMPTIONS = (
 )
 
 
-def add_report_to_run(solved, summary: dict, folder: Path) -> None:
-    """Mesh study (when the case asks for it), verification table, summary.json again, report.html(.pdf)."""
-    from .verification import verification_rows
-
+def write_report(case, summary: dict, folder: Path, rows, passed: bool) -> str:
+    """report.html (and report.pdf when WeasyPrint is usable) in ``folder``; returns what
+    became of the PDF (its file name, or why it was not written)."""
     folder = Path(folder)
-    summary["mesh_study"] = _mesh_study_or_reason(solved)
-    rows, passed = verification_rows()
-    summary["verification"] = {"all_passed": passed, "checks": len(rows), "failed": sum(not r.passed for r in rows)}
-    html_text = report_html(solved, summary, folder, rows, passed)
+    html_text = report_html(case, summary, folder, rows, passed)
     (folder / "report.html").write_text(html_text, encoding="utf-8")
-    summary["report_pdf"] = write_pdf(html_text, folder / "report.pdf")
-    write_json(folder / "summary.json", summary)
-
-
-def _mesh_study_or_reason(solved) -> dict:
-    from .case import CaseError
-    from .pipeline import PhysicsError
-    from .verification.mesh_study import mesh_study
-
-    if not solved.case.verification.mesh_study:
-        return {"skipped": "switched off in the case ([verification] mesh_study = false)"}
-    try:
-        return mesh_study(solved)
-    except (CaseError, PhysicsError) as exc:
-        # a coarser mesh that cannot be built or solved is a finding of the study, not a failed run
-        reason = "; ".join(exc.problems) if isinstance(exc, CaseError) else str(exc)
-        return {"skipped": f"a coarser mesh could not be solved: {reason}"}
+    return write_pdf(html_text, folder / "report.pdf")
 
 
 def write_pdf(html_text: str, path: Path) -> str:
@@ -66,8 +46,7 @@ def write_pdf(html_text: str, path: Path) -> str:
     return path.name
 
 
-def report_html(solved, summary: dict, folder: Path, rows, passed: bool) -> str:
-    case = solved.case
+def report_html(case, summary: dict, folder: Path, rows, passed: bool) -> str:
     parts = [
         f"<h1>Torque capacity check: {esc(case.name)}</h1>",
         f'<p class="caution">Caution: {esc(summary["caution"])}</p>',
@@ -221,7 +200,6 @@ def _mesh_study(study: dict) -> str:
 
 
 def _verification(rows, passed: bool) -> str:
-    from .verification.table import format_error, format_tolerance
 
     body = [[esc(r.case), esc(r.quantity), sig(r.computed, 6), sig(r.reference, 6), esc(format_error(r)),
              esc(format_tolerance(r)), esc(r.source), "pass" if r.passed else '<span class="bad">FAIL</span>']
@@ -237,7 +215,6 @@ def _verification(rows, passed: bool) -> str:
 
 
 def _inputs(case) -> str:
-    from .schema import SCHEMA
 
     rows = []
     for key, value in case.flat().items():

@@ -17,36 +17,15 @@ import fnmatch
 import json
 import math
 import os
-import platform
 import re
 import shutil
 import tempfile
 from pathlib import Path
 
-from .errors import OutputFolderError
+from ..errors import OutputFolderError
 
 MARKER = ".clutchfe-results.json"
-# a label becomes a folder name: letters, digits, '_', '-', '.', '+', single inner spaces;
-# it must start with a letter or digit (so never '.', '..' or a hidden name) and stay short
-LABEL_PATTERN = re.compile(r"[^\W_][\w.+-]*(?: [\w.+-]+)*")
-LABEL_MAX = 80
-LABEL_RULE = ("a plain file-name label of 1 to 80 letters, digits, '_', '-', '.', '+' or single spaces, "
-              "starting with a letter or digit")
 _SCRATCH = re.compile(r"^\.(?P<name>.+)\.(?:writing|old)-(?P<pid>\d+)-[^/]*$")
-
-
-def label_problem(key: str, value) -> str | None:
-    """The problem with ``value`` as a results-folder label, or None when it is fine."""
-    if isinstance(value, str) and len(value) <= LABEL_MAX and LABEL_PATTERN.fullmatch(value):
-        return None
-    shown = repr(value) if not isinstance(value, str) or len(value) <= 60 else repr(value[:57]) + "…"
-    return f"{key} = {shown}: not usable as a results-folder name; allowed: {LABEL_RULE}"
-
-
-def safe_label(text: str, fallback: str = "case") -> str:
-    """``text`` made into a valid label (for defaults taken from a file name)."""
-    cleaned = re.sub(r"[^\w.+-]+", "_", text).strip("._-+")[:LABEL_MAX].strip("._-+")
-    return cleaned if cleaned and LABEL_PATTERN.fullmatch(cleaned) else fallback
 
 
 def check_output_folder(folder: str | Path) -> None:
@@ -195,15 +174,3 @@ def clean_json(value):
 
 def write_json(path: Path, data: dict) -> None:
     path.write_text(json.dumps(clean_json(data), indent=2, sort_keys=False) + "\n", encoding="utf-8")
-
-
-def versions() -> dict[str, str]:
-    from importlib import metadata
-
-    out = {"python": platform.python_version()}
-    for pkg in ("clutchfe", "numpy", "scipy", "scikit-fem", "meshio", "gmsh", "matplotlib", "pyvista"):
-        try:
-            out[pkg] = metadata.version(pkg)
-        except metadata.PackageNotFoundError:
-            out[pkg] = "not installed"
-    return out

@@ -1,0 +1,265 @@
+"""The run plan: the stages of one run, called in order, and the summary written once at the end.
+
+    case ──► geometry (section) ──► solve service (mesh, condense, solve) ──► comparison
+         ──► analyses (tilt, wear-in) ──► evidence (mesh study, verification table)
+         ──► files and pictures ──► report ──► summary.json
+
+:func:`analyse` is everything that is computed for a case (no files); a study sample is
+exactly that call on the sample's case.  :func:`run_case` adds the evidence and writes the
+results folder atomically.  No stage registers itself anywhere: this module is the list.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+from pathlib import Path
+
+from rich.progress import Progress
+from rich.table import Table
+
+from .analyses.tilt import TiltResult, tilt_result, tilt_summary_keys, write_tilt_files
+from .analyses.wear import WearRun, wear_in_case, wear_summary, wear_table, write_wear_files
+from .case import Case
+from .comparison import Comparison, HandCapacity, compare_solved, hand_of
+from .errors import CaseError, PhysicsError
+from .geometry import build_section, mesh_section, section_picture, write_mesh
+from .output import atomic_folder, print_table, write_all, write_json
+from .output.report import write_report
+from .provenance import CAUTION, __version__, versions
+from .solve import SolvedCase, SolveService
+from .verification import verification_rows
+from .verification.mesh_study import mesh_study
+
+
+@dataclass(frozen=True)
+class CaseResult:
+    """Everything the stages found for one case, before any file is written."""
+
+    solved: SolvedCase
+    hand: HandCapacity
+    comparison: Comparison
+    tilt: TiltResult | None = None      # the case has an axis tilt or a radial offset
+    wear: WearRun | None = None         # the case has a [wear] table
+
+    @property
+    def case(self) -> Case:
+        return self.solved.case
+
+
+@dataclass(frozen=True)
+class Evidence:
+    """What backs the numbers of a run: the mesh study and the solver's verification table."""
+
+    mesh_study: dict
+    verification_rows: list
+    verification_passed: bool
+
+
+def section_of(case: Case):
+    """The case's (r, z) section (GeometryError, an input error, when it cannot be drawn)."""
+    return build_section(case)
+
+
+def wants_wear(case: Case) -> bool:
+    return "wear" in case.tables_given
+
+
+def analyse(case: Case, service: SolveService | None = None, fields: bool = True, progress=None) -> CaseResult:
+    """Solve, compare and run every analysis the case asks for (no files).
+
+    Parameters
+    ----------
+    case : Case
+        A validated case (:func:`clutchfe.load_case`, :func:`clutchfe.case_from_dict`).
+    service : SolveService, optional
+        The solve service to use; a study passes its worker's, so a stiffness group is
+        prepared (meshed, condensed) once.  A new one by default.
+    fields : bool
+        False skips the displacement and stress fields (the interface results stay).
+
+    Returns
+    -------
+    CaseResult
+        The solved case, the hand methods, the comparison, and the tilt and wear-in
+        results when the case asks for them.
+
+    Examples
+    --------
+    >>> from clutchfe import analyse, case_from_dict
+    >>> case = case_from_dict({"kind": "plate", "interface": {"inner_radius": 50.0, "outer_radius": 75.0,
+    ...     "friction_coefficient": 0.3, "friction_surfaces": 2}, "load": {"axial_force": 3000.0},
+    ...     "mesh": {"interface_element_size": 2.0, "element_size": 8.0, "edge_element_size": 0.8}})
+    >>> result = analyse(case, fields=False)
+    >>> 50.0 < result.comparison.effective_radius_mm < 75.0     # always inside [r1, r2]
+    True
+    >>> result.tilt is None and result.wear is None
+    True
+    """
+    service = service if service is not None else SolveService()
+    step = progress or (lambda description: None)
+    step("solving the contact")
+    solved = service.solve(case, fields=fields)
+    hand = hand_of(case)
+    comparison = compare_solved(solved, hand)
+    tilt = tilt_result(solved) if solved.tilted is not None else None
+    wear = None
+    if wants_wear(case):
+        step("wearing the interface in")
+        wear = wear_in_case(solved, hand)
+    return CaseResult(solved, hand, comparison, tilt, wear)
+
+
+def gather_evidence(result: CaseResult, service: SolveService, progress=None) -> Evidence:
+    """The mesh study of the run's case (unless switched off) and the verification table."""
+    step = progress or (lambda description: None)
+    step("mesh study (two coarser meshes)")
+    study = _mesh_study_or_reason(result, service)
+    step("verification table")
+    rows, passed = verification_rows()
+    return Evidence(study, rows, passed)
+
+
+def _mesh_study_or_reason(result: CaseResult, service: SolveService) -> dict:
+    if not result.case.verification.mesh_study:
+        return {"skipped": "switched off in the case ([verification] mesh_study = false)"}
+    try:
+        return mesh_study(result.solved, result.comparison, service)
+    except (CaseError, PhysicsError) as exc:
+        # a coarser mesh that cannot be built or solved is a finding of the study, not a failed run
+        reason = "; ".join(exc.problems) if isinstance(exc, CaseError) else str(exc)
+        return {"skipped": f"a coarser mesh could not be solved: {reason}"}
+
+
+def print_check(case: Case, section, console) -> None:
+    itf = case.interface
+    table = Table(title=f"case {case.name!r} ({case.kind}) is valid", show_header=False)
+    table.add_row("friction surface", f"r1 = {itf.inner_radius:g} mm, r2 = {itf.outer_radius:g} mm, "
+                  f"semi-cone angle = {itf.semi_cone_angle:g} deg")
+    table.add_row("friction", f"mu = {itf.friction_coefficient:g} on {itf.friction_surfaces} surface(s)")
+    table.add_row("axial force", f"{case.load.axial_force:g} N ({case.load.application})")
+    table.add_row("bodies", ", ".join(f"{b.label} ({b.role})" for b in section.bodies))
+    table.add_row("lining", f"{case.lining.thickness:g} mm, E = {case.lining.youngs_modulus:g} MPa, "
+                  f"on the {case.lining.bonded_to}")
+    table.add_row("input sha256", case.input_sha256[:16] + "…")
+    console.print(table)
+
+
+
+def mesh_case(case: Case, section, folder: Path, console) -> None:
+    mesh = mesh_section(section, order=case.mesh.element_order)
+    with atomic_folder(folder, kind="mesh") as tmp:
+        write_mesh(mesh, tmp / "mesh.vtu")
+        section_picture(section, mesh, tmp / "section.png",
+                        title=f"{case.name}: {len(mesh.triangles)} triangles (order {mesh.order}), "
+                              f"{len(mesh.points)} nodes")
+        write_json(tmp / "mesh.json", {
+            "case_name": case.name, "input_sha256": case.input_sha256, "versions": versions(),
+            "element_order": mesh.order, "triangles": len(mesh.triangles), "nodes": len(mesh.points),
+            "faces": {name: len(seg) for name, seg in sorted(mesh.faces.items())},
+            "interface_node_pairs": {k: len(v) for k, v in mesh.interface_pairs.items()},
+            "caution": CAUTION})
+    console.print(f"mesh of {case.name!r}: {len(mesh.triangles)} triangles, {len(mesh.points)} nodes, "
+                  f"{len(mesh.faces)} named faces -> {folder}/mesh.vtu, {folder}/section.png")
+
+
+
+class _Steps:
+    """The progress bar of one run, naming each step."""
+
+    def __init__(self, progress: Progress, total: int):
+        self.progress, self.task = progress, progress.add_task("meshing the section", total=total)
+
+    def __call__(self, description: str) -> None:
+        self.progress.update(self.task, advance=1, description=description)
+
+
+def run_case(case: Case, folder: Path, console, service: SolveService | None = None) -> dict:
+    """The whole run of one case: analyse, gather the evidence, write the results folder.
+
+    Parameters
+    ----------
+    case : Case
+        A validated case.
+    folder : Path
+        The results folder: new, empty, or one clutchfe wrote (anything else is refused
+        with :class:`OutputFolderError`); replaced in one rename when everything is written.
+    console : rich.console.Console
+        Where the progress bar and the result table go.
+
+    Returns
+    -------
+    dict
+        summary.json as written (see README, "What summary.json holds").
+    """
+    service = service if service is not None else SolveService()
+    with Progress(transient=True, console=console) as progress:
+        step = _Steps(progress, total=8)
+        service.prepare(case)
+        result = analyse(case, service, progress=step)
+        evidence = gather_evidence(result, service, progress=step)
+        summary = summary_of(result, evidence)
+        step("pictures and files")
+        with atomic_folder(folder) as tmp:
+            write_case_files(result, tmp)
+            step("report")
+            summary["report_pdf"] = write_report(case, summary, tmp, evidence.verification_rows,
+                                                 evidence.verification_passed)
+            write_json(tmp / "summary.json", summary)       # once, last: every stage has spoken
+        step("done")
+    print_table(console, case, summary, folder,
+                extra_tables=[wear_table(summary)] if result.wear is not None else [])
+    return summary
+
+
+def write_case_files(result: CaseResult, folder: Path) -> None:
+    """Every file of the stages and analyses except summary.json and the report."""
+    solved = result.solved
+    write_all(folder, result.case, solved.section, solved.mesh, solved.fe, result.comparison,
+              axisymmetric=result.tilt is None)
+    if result.tilt is not None:
+        write_tilt_files(result.tilt, folder)
+    if result.wear is not None:
+        write_wear_files(result.wear, result.case, result.hand, folder)
+
+
+def summary_of(result: CaseResult, evidence: Evidence | None = None) -> dict:
+    """summary.json of a run: every stage's keys, in stage order (declared in clutchfe.summary_keys)."""
+    case, fe, mesh, comparison = result.case, result.solved.fe, result.solved.mesh, result.comparison
+    itf = case.interface
+    summary = {
+        "case_name": case.name, "kind": case.kind, "input_sha256": case.input_sha256, "version": __version__,
+        "friction_coefficient": itf.friction_coefficient, "friction_surfaces": itf.friction_surfaces,
+        "semi_cone_angle_deg": itf.semi_cone_angle, "inner_radius_mm": itf.inner_radius,
+        "outer_radius_mm": itf.outer_radius, "axial_force_N": case.load.axial_force,
+    }
+    for key in ("torque_fe_Nm", "torque_uniform_pressure_Nm", "torque_uniform_wear_Nm", "capacity_position",
+                "effective_radius_mm", "radius_uniform_pressure_mm", "radius_uniform_wear_mm",
+                "peak_pressure_MPa", "mean_pressure_MPa", "contact_area_fraction", "engagement_force_N"):
+        summary[key] = comparison[key]
+    summary["axial_force_balance_error"] = max(abs(comparison.axial_force_balance_error),
+                                               fe.axial_force_balance_error)
+    summary["dofs"] = fe.dofs
+    summary["solve_seconds"] = round(fe.timings.get("total", 0.0), 4)
+    allowable = case.lining.allowable_pressure
+    plain = comparison.as_dict()
+    summary.update({k: v for k, v in plain.items() if k not in summary and k not in ("surfaces", "warnings")})
+    summary["surfaces"] = plain["surfaces"]
+    summary["peak_pressure_over_allowable"] = comparison.peak_pressure_MPa / allowable if allowable else None
+    summary["rigid_approach_mm"] = fe.rigid_approach
+    summary["contact_iterations"] = fe.contact_iterations
+    summary["mesh"] = {"nodes": int(len(mesh.points)), "triangles": int(len(mesh.triangles)),
+                       "element_order": case.mesh.element_order}
+    summary["warnings"] = list(case.warnings) + list(comparison.warnings)
+    if result.tilt is not None:
+        summary.update(tilt_summary_keys(result.tilt))
+    if result.wear is not None:
+        keys = wear_summary(result.wear, case)
+        summary["warnings"] += keys.pop("wear_warnings")
+        summary.update(keys)
+    summary["versions"] = versions()
+    summary["caution"] = CAUTION
+    if evidence is not None:
+        rows = evidence.verification_rows
+        summary["mesh_study"] = evidence.mesh_study
+        summary["verification"] = {"all_passed": evidence.verification_passed, "checks": len(rows),
+                                   "failed": sum(not r.passed for r in rows)}
+    return summary

@@ -1,0 +1,42 @@
+"""The FE stage's plain input built from a case's section and mesh."""
+from __future__ import annotations
+
+import numpy as np
+
+from ..case import Case
+from ..fem import ContactPair, FaceLoad, FeModel, RingLoad, SpringSupport
+
+
+def fe_model_of(case: Case, section, mesh, axial_force_N: float | None = None, gaps: bool = True) -> FeModel:
+    """Bodies, materials, supports, load and friction interfaces of a meshed section.
+
+    ``axial_force_N`` replaces the section's force (the solve service builds one model at a
+    reference force and scales it); ``gaps=False`` leaves the interfaces closed (the service
+    passes each case's initial gaps to the solve instead).
+    """
+    regions = {reg.name: reg for reg in section.regions}
+    body_index = {b.name: k for k, b in enumerate(section.bodies)}
+    by_region = np.array([body_index[regions[n].body] for n in mesh.region_names])
+    modulus = np.array([regions[n].youngs_modulus for n in mesh.region_names])
+    poisson = np.array([regions[n].poissons_ratio for n in mesh.region_names])
+    sup = case.support
+    springs = sup.type == "springs"
+    supports = [SpringSupport(section.support_axial_face, axial_stiffness=sup.axial_stiffness if springs else None,
+                              radial_stiffness=0.0),
+                SpringSupport(section.support_radial_face, axial_stiffness=0.0,
+                              radial_stiffness=sup.radial_stiffness if springs else None)]
+    force = -(section.axial_force if axial_force_N is None else axial_force_N)   # the pressed body moves along -z
+    load = (RingLoad(section.load_face, section.ring_radius, force) if section.ring_radius is not None
+            else FaceLoad(section.load_face, force))
+    contacts = []
+    for itf in section.interfaces:
+        pairs = mesh.interface_pairs[itf.name]
+        gap = itf.initial_gap(mesh.points[pairs[:, 0]]) if gaps else np.zeros(len(pairs))
+        contacts.append(ContactPair(itf.name, itf.face_a, itf.face_b, itf.normal_a, pairs.T.copy(), gap))
+    return FeModel(
+        points=mesh.points.T.copy(), triangles=mesh.triangles[:, :3].T.copy(),
+        element_body=by_region[mesh.triangle_region], element_youngs_modulus=modulus[mesh.triangle_region],
+        element_poissons_ratio=poisson[mesh.triangle_region], body_names=[b.name for b in section.bodies],
+        body_axially_free=[b.role != "supported" for b in section.bodies],
+        faces={k: v[:, :2].T.copy() for k, v in mesh.faces.items()}, supports=supports, loads=[load],
+        contacts=contacts, element_order=case.mesh.element_order)

@@ -1,0 +1,173 @@
+"""Every top-level key summary.json can hold: unit, meaning, producing stage, always or not.
+
+``clutchfe.plan.summary_of`` assembles summary.json from the stages; this table declares
+what comes out, for the README ("What summary.json holds", rewritten by
+``python3 -m clutchfe.summary_keys``) and for the test that runs real cases and checks
+every key they write against it.  Standard library only, so anything may import it.
+
+Units as in the outputs: mm, N, MPa, torque in N·m; an empty unit is a pure number
+(fraction, ratio, count) or text.  Relative values are plain fractions (0.05 = 5 %)
+unless the name says ``percent``.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from .readme import write_between_markers
+
+STAGES = ("case", "solve", "comparison", "tilt", "wear-in", "evidence", "report", "provenance")
+
+# the stages whose keys are there only when the case asks for that analysis (the README says so)
+OPTIONAL_STAGES = {"tilt": "a case with an axis tilt or a radial offset", "wear-in": "a case with a [wear] table"}
+
+MARKERS = ("<!-- summary keys: start -->", "<!-- summary keys: end -->")
+
+
+@dataclass(frozen=True)
+class SummaryKey:
+    key: str
+    unit: str           # "" for a pure number or text
+    meaning: str
+    stage: str          # one of STAGES
+    always: bool        # False: only when the stage's analysis runs (OPTIONAL_STAGES)
+
+
+def _k(stage: str, always: bool, rows: tuple) -> tuple:
+    return tuple(SummaryKey(key, unit, meaning, stage, always) for key, unit, meaning in rows)
+
+
+_STEADY = "only when the wear-in reached its steady state: "
+
+SUMMARY_KEYS: tuple[SummaryKey, ...] = (
+    *_k("case", True, (
+        ("case_name", "", "name of the case: its name key, else the case file's name"),
+        ("kind", "", '"cone" or "plate"'),
+        ("input_sha256", "", "SHA-256 of the case file as read (empty for a case built in code)"),
+        ("friction_coefficient", "", "friction coefficient μ of the case"),
+        ("friction_surfaces", "", "number of friction faces n carrying the torque"),
+        ("semi_cone_angle_deg", "deg", "semi-cone angle α of the friction face (90 for a plate)"),
+        ("inner_radius_mm", "mm", "inner radius r1 of the friction face"),
+        ("outer_radius_mm", "mm", "outer radius r2 of the friction face"),
+        ("axial_force_N", "N", "axial clamp force W of the case"),
+    )),
+    *_k("comparison", True, (
+        ("torque_fe_Nm", "N·m", "torque capacity from the FE contact pressure, n μ ∫ p r dA over all faces"),
+        ("torque_uniform_pressure_Nm", "N·m", "torque capacity by the uniform-pressure hand formula"),
+        ("torque_uniform_wear_Nm", "N·m", "torque capacity by the uniform-wear hand formula"),
+        ("capacity_position", "", "ξ = (T_fe − T_uw)/(T_up − T_uw): 0 at uniform wear, 1 at uniform pressure; "
+                                  "below 0 even the uniform-wear formula overestimates the capacity"),
+        ("effective_radius_mm", "mm", "effective friction radius of the FE torque, T_fe sin α / (n μ W)"),
+        ("radius_uniform_pressure_mm", "mm", "effective radius of the uniform-pressure method"),
+        ("radius_uniform_wear_mm", "mm", "effective radius of the uniform-wear method, (r1 + r2)/2"),
+        ("peak_pressure_MPa", "MPa", "highest FE contact pressure on any face (on the (r, θ) grid when tilted); "
+                                     "an edge peak grows as the mesh is refined"),
+        ("mean_pressure_MPa", "MPa", "average normal pressure W over the face area: the uniform-pressure "
+                                     "value, the same as uniform_pressure_MPa, not an FE result"),
+        ("contact_area_fraction", "", "share of the friction area in contact (FE; on the (r, θ) grid when tilted)"),
+        ("engagement_force_N", "N", "axial force to push a cone home while it slides, W (1 + μ cot α); "
+                                    "W for a plate"),
+        ("axial_force_balance_error", "", "relative error of the FE axial force balance, the larger of "
+                                          "the comparison's and the solver's (size only)"),
+        ("uniform_pressure_MPa", "MPa", "pressure of the uniform-pressure method, W / (π (r2² − r1²))"),
+        ("peak_pressure_uniform_wear_MPa", "MPa", "peak pressure of the uniform-wear method, at r1"),
+        ("self_locking", "", "true when the cone self-locks (tan α < μ) and needs a pull to disengage"),
+        ("capacity_position_uncertainty", "", "how far ξ may move from the axial balance error alone"),
+        ("effective_radius_position", "", "where the FE effective radius sits on [r1, r2] (0 at r1, 1 at r2)"),
+        ("radius_uniform_pressure_position", "", "where the uniform-pressure radius sits on [r1, r2]"),
+        ("radius_uniform_wear_position", "", "where the uniform-wear radius sits on [r1, r2] (0.5)"),
+        ("torque_fe_over_uniform_wear", "", "T_fe / T_uw − 1: relative excess of the FE torque over uniform "
+                                            "wear (a difference, not the ratio)"),
+        ("torque_fe_over_uniform_pressure", "", "T_fe / T_up − 1: relative excess of the FE torque over "
+                                                "uniform pressure (a difference, not the ratio)"),
+        ("peak_pressure_radius_mm", "mm", "radius of the FE peak pressure"),
+        ("peak_pressure_surface", "", "name of the friction face with the FE peak pressure"),
+        ("peak_pressure_over_uniform_wear_peak", "", "FE peak pressure / uniform-wear peak pressure (the ratio)"),
+        ("faces_per_modelled_surface", "", "friction faces each modelled face stands for (1: all modelled)"),
+        ("verdict", "", "the comparison in plain words: which hand formula is conservative, where R_eff sits, "
+                        "the margins"),
+        ("required_torque_Nm", "N·m", "required torque of the [requirement] table (null without one)"),
+        ("service_factor", "", "service factor of the [requirement] table (null without one)"),
+        ("capacity_margin_fe", "", "FE torque / (required torque × service factor) − 1, as a fraction "
+                                   "(null without a requirement); below 0 the clutch slips"),
+        ("capacity_margin_uniform_pressure", "", "the same margin for the uniform-pressure torque"),
+        ("capacity_margin_uniform_wear", "", "the same margin for the uniform-wear torque"),
+        ("surfaces", "", "one entry per modelled friction face: name, axial_force_N, axial_force_share, "
+                         "axial_force_balance_error, torque_Nm, torque_share, effective_radius_mm, "
+                         "peak_pressure_MPa, contact_area_fraction"),
+        ("peak_pressure_over_allowable", "", "FE peak pressure / the lining's allowable pressure "
+                                             "(null without lining.allowable_pressure)"),
+        ("warnings", "", "list of warnings in plain words: the case's, the comparison's and the wear-in's"),
+    )),
+    *_k("solve", True, (
+        ("dofs", "", "number of unknowns (degrees of freedom) of the FE model"),
+        ("solve_seconds", "s", "wall time of the FE solve"),
+        ("rigid_approach_mm", "mm", "per free body (name → value): its rigid axial translation under load"),
+        ("contact_iterations", "", "iterations the contact solver took"),
+        ("mesh", "", "the mesh of the run: nodes, triangles, element_order (1 linear, 2 quadratic)"),
+    )),
+    *_k("tilt", False, (
+        ("peak_pressure_theta_deg", "deg", "angle around the axis of the peak pressure on the (r, θ) grid"),
+        ("peak_pressure_r_mm", "mm", "radius of the peak pressure on the (r, θ) grid "
+                                     "(the same value as peak_pressure_radius_mm)"),
+        ("tilt_moment_Nm", "N·m", "tilting moment the guidance of the pressed part carries (0 when "
+                                  "self-aligning)"),
+        ("harmonics", "", "highest Fourier harmonic N solved (harmonics 0 … N)"),
+        ("angular_divisions", "", "angles of the contact grid around the axis, 2N"),
+        ("axis_tilt_deg", "deg", "imposed axis tilt of the pressed part (misalignment.axis_tilt)"),
+        ("radial_offset_mm", "mm", "imposed radial offset of the pressed part (misalignment.radial_offset)"),
+        ("guidance", "", '"held" or "self_aligning": how the pressed part\'s tilt is guided'),
+        ("residual_tilt_deg", "deg", "tilt of the pressed part under load (the imposed tilt when held)"),
+        ("floating_tilt_deg", "deg", "per floating body that may tilt (name → value): its tilt under load"),
+        ("open_area_fraction", "", "share of the friction area that is open (1 − contact_area_fraction)"),
+    )),
+    *_k("wear-in", False, (
+        ("torque_worn_in_Nm", "N·m", "FE torque capacity at the end of the wear-in"),
+        ("capacity_position_worn_in", "", "capacity position ξ at the end of the wear-in (0 = uniform wear)"),
+        ("effective_radius_worn_in_mm", "mm", "FE effective radius at the end of the wear-in"),
+        ("peak_pressure_worn_in_MPa", "MPa", "FE peak pressure at the end of the wear-in"),
+        ("worn_in_converged", "", "true when p·r became steady (the interface wore in)"),
+        ("wear_steps", "", "number of wear steps taken"),
+        ("wear_stop_reason", "", 'why the wear-in stopped: "steady", "sliding" (duty done), "volume" '
+                                 '(target volume), "depth limit" (lining limit) or "step limit"'),
+        ("torque_change_worn_in_percent", "%", "change of the FE torque from new to the end of the wear-in"),
+        ("contact_area_fraction_worn_in", "", "share of the friction area in contact at the end of the wear-in"),
+        ("p_r_spread_worn_in", "", "(max − min)/mean of p·r over the contact at the end, largest over the "
+                                   "faces; 0 is exact uniform wear"),
+        ("wear_coefficient_mm3_per_N_m", "mm³/(N·m)", "Archard wear coefficient used (wear.wear_coefficient)"),
+        ("wear_volume_mm3", "mm³", "volume worn off the lining, all friction faces"),
+        ("wear_depth_max_mm", "mm", "deepest wear of the lining"),
+        ("wear_sliding_rad", "rad", "relative rotation of the faces while slipping, summed over the wear-in"),
+        ("wear_engagements", "", "engagements that sliding stands for (null without slip_speed and slip_time)"),
+        ("capacity_margin_fe_worn_in", "", "FE capacity margin at the end of the wear-in, as a fraction "
+                                           "(null without a requirement)"),
+        ("steady_wear_volume_mm3", "mm³", _STEADY + "the wear volume at which p·r first became steady"),
+        ("steady_engagements", "", _STEADY + "engagements to the steady state (null without a duty)"),
+    )),
+    *_k("provenance", True, (
+        ("version", "", "clutchfe version that wrote the file"),
+        ("versions", "", "Python and package versions of the run (name → version)"),
+        ("caution", "", "the safety caution: results support, never replace, codes and a licensed engineer"),
+    )),
+    *_k("evidence", True, (
+        ("mesh_study", "", "the mesh study: the three meshes (sizes, triangles, results), observed order, "
+                           "Richardson value and GCI per quantity, converged, verdict; only skipped (the reason) "
+                           "when switched off or a coarser mesh could not be solved"),
+        ("verification", "", "the solver's verification table: all_passed, checks, failed"),
+    )),
+    *_k("report", True, (
+        ("report_pdf", "", 'file name of the PDF report ("report.pdf"), or why it was not written'),
+    )),
+)
+
+BY_KEY = {k.key: k for k in SUMMARY_KEYS}
+
+
+def reference_markdown() -> str:
+    """The summary.json reference as a Markdown table (used by the README)."""
+    lines = ["| key | unit | stage | meaning |", "|---|---|---|---|"]
+    lines += [f"| `{k.key}` | {k.unit} | {k.stage} | {k.meaning} |" for k in SUMMARY_KEYS]
+    return "\n".join(lines)
+
+
+if __name__ == "__main__":      # rewrite the README's table: python3 -m clutchfe.summary_keys
+    write_between_markers("README.md", reference_markdown(), MARKERS)

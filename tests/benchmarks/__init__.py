@@ -1,0 +1,2 @@
+"""Printed speed ratios, not collected by pytest; run each from the repository root as
+``python3 -m tests.benchmarks.<name>``."""

@@ -1,0 +1,1 @@
+"""Solver verification: the FE stage against closed forms."""

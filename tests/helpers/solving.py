@@ -1,0 +1,69 @@
+"""Cases solved for the tests: through the solve service, or on a solver of the case's own model.
+
+``solved_case`` keeps the shape the tests read (``.result`` the comparison, ``.solver`` a
+ContactSolver at the case's own force and initial gaps, for tests that drive fem.wear or
+re-solve directly); its numbers come from the same model the solve service builds.
+"""
+from dataclasses import dataclass
+
+from clutchfe import fem
+from clutchfe.comparison import Comparison, HandCapacity, compare, hand_of
+from clutchfe.geometry import build_section, mesh_section
+from clutchfe.solve import fe_model_of
+
+__all__ = ["Solved", "solve_case", "solved_case"]
+
+
+@dataclass
+class Solved:
+    case: object
+    section: object
+    mesh: object
+    solver: fem.ContactSolver
+    fe: fem.FeResult
+    hand: HandCapacity
+    result: Comparison
+
+
+def solved_case(case, mesh=None) -> Solved:
+    """Mesh, build the case's model at its own force and gaps, solve and compare (axisymmetric)."""
+    section = build_section(case)
+    mesh = mesh if mesh is not None else mesh_section(section, order=1)
+    solver = fem.ContactSolver(fe_model_of(case, section, mesh))
+    fe = solver.solve()
+    hand = hand_of(case)
+    req = case.requirement
+    return Solved(case, section, mesh, solver, fe, hand, compare(fe.interfaces, hand, req.required_torque,
+                                                                 req.service_factor))
+
+
+def solve_case(case):
+    """(mesh, FeResult, Comparison) of a case."""
+    s = solved_case(case)
+    return s.mesh, s.fe, s.result
+
+
+@dataclass
+class Tilted:
+    """A tilted solve as the tilt tests read it: the tilt analysis plus ``.result``."""
+
+    tilt: object        # analyses.tilt.TiltResult
+    result: Comparison
+
+    def __getattr__(self, name):
+        return getattr(self.tilt, name)
+
+
+def solve_tilted(case, tilt_deg: float, offset_mm: float = 0.0, divisions: int | None = None) -> Tilted:
+    """The case at ``tilt_deg`` / ``offset_mm`` on the (r, θ) grid (even at zero tilt)."""
+    from dataclasses import replace
+
+    from clutchfe.analyses.tilt import tilt_result
+    from clutchfe.comparison import compare_solved
+    from clutchfe.solve import SolveService
+
+    mesh = replace(case.mesh, angular_divisions=divisions or case.mesh.angular_divisions)
+    case = replace(case, mesh=mesh, misalignment=replace(case.misalignment, axis_tilt=tilt_deg,
+                                                         radial_offset=offset_mm))
+    solved = SolveService().solve(case, fields=False, on_grid=True)
+    return Tilted(tilt_result(solved), compare_solved(solved))
