@@ -370,8 +370,10 @@ def _cross_checks(v: dict, kind: str, problems: list[str], given: frozenset = fr
         if abs(coning) >= t:
             problems.append(f"misalignment.coning = {coning:g}: must be smaller than the lining thickness; "
                             f"allowed: -{t:g} < coning < {t:g} mm")
+    _check_lining_ends(v, kind, problems)
     _check_load(v, kind, problems)
     _check_support(v, problems)
+    _check_tilt_pivot(v, problems)
     if "wear" in given:
         _check_wear(v, problems)
         for key in ("misalignment.axis_tilt", "misalignment.radial_offset"):
@@ -380,6 +382,30 @@ def _cross_checks(v: dict, kind: str, problems: list[str], given: frozenset = fr
                                 "remove [wear] or set it to 0")
     _check_mesh(v, kind, problems)
     return warnings
+
+
+def _check_lining_ends(v: dict, kind: str, problems: list[str]) -> None:
+    """A chamfered plate lining's bond runs one lining thickness past r1 and r2: its carriers must reach
+    that far (a cone's rim and cup grow with the bond; cone.py checks the webs they may run into)."""
+    if kind != "plate" or v["lining.end_shape"] != "chamfer" or v["lining.bonded_to"] not in ("disc", "plates"):
+        return
+    r1, r2, t = v["interface.inner_radius"], v["interface.outer_radius"], v["lining.thickness"]
+    if v["lining.bonded_to"] == "disc":
+        carriers = [("disc.core_inner_radius", "disc.core_outer_radius")]
+    else:
+        parts = ["pressure_plate", "counter_plate"] + (["separator_plate"] if v["interface.friction_surfaces"] > 2
+                                                        else [])
+        carriers = [(f"{p}.inner_radius", f"{p}.outer_radius") for p in parts]
+    for lo_key, hi_key in carriers:
+        lo, hi = v[lo_key], v[hi_key]
+        if r1 - t < lo <= r1:           # lo > r1 is reported by the friction-surface check
+            problems.append(f"{lo_key} = {lo:g}: with lining.end_shape = 'chamfer' the lining's bond runs one "
+                            f"lining thickness inside r1; allowed: value ≤ interface.inner_radius − "
+                            f"lining.thickness = {r1 - t:g} mm, or lining.end_shape = 'normal_to_face'")
+        if r2 <= hi < r2 + t:
+            problems.append(f"{hi_key} = {hi:g}: with lining.end_shape = 'chamfer' the lining's bond runs one "
+                            f"lining thickness past r2; allowed: value ≥ interface.outer_radius + "
+                            f"lining.thickness = {r2 + t:g} mm, or lining.end_shape = 'normal_to_face'")
 
 
 def _check_load(v: dict, kind: str, problems: list[str]) -> None:
@@ -414,6 +440,15 @@ def _check_wear(v: dict, problems: list[str]) -> None:
     if v["wear.max_wear_depth"] >= v["lining.thickness"]:
         problems.append(f"wear.max_wear_depth = {v['wear.max_wear_depth']:g}: must be less than the lining "
                         f"thickness; allowed: 0 < value < {v['lining.thickness']:g} mm")
+
+
+def _check_tilt_pivot(v: dict, problems: list[str]) -> None:
+    """The tilt pivot within two outer radii of the friction face: further away, a tilt of the
+    pressed part is mostly a radial shift of its face (give that as misalignment.radial_offset)."""
+    offset, limit = v["misalignment.tilt_pivot_offset"], 2.0 * v["interface.outer_radius"]
+    if not abs(offset) <= limit:
+        problems.append(f"misalignment.tilt_pivot_offset = {offset:g}: the pivot must lie within two outer radii "
+                        f"of the middle of the friction face; allowed: -{limit:g} ≤ value ≤ {limit:g} mm")
 
 
 def _check_support(v: dict, problems: list[str]) -> None:

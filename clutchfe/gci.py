@@ -41,6 +41,9 @@ class GridConvergence:
     band_fine: float | None         # GCI_fine^21 as an absolute band around f1, units of f
     asymptotic_ratio: float | None  # GCI^32 / (r21^p GCI^21): 1 in the asymptotic range
     order_assumed: bool = False     # True: no observed order; GCI from the largest change, Fs = 3, p = 1
+    band_coarse: float | None = None    # absolute band around the coarsest value f3, units of f
+    order_used: float | None = None     # the order the extrapolation and the bands use
+    order_capped: bool = False      # True: the observed order exceeded the formal order of the elements
 
     @property
     def in_asymptotic_range(self) -> bool:
@@ -99,8 +102,16 @@ def _bracketed_order(update) -> float:
 
 
 def grid_convergence(fine: float, medium: float, coarse: float, ratio_21: float,
-                     ratio_32: float | None = None, safety_factor: float = SAFETY_FACTOR) -> GridConvergence:
-    """Observed order, extrapolated value and GCI of one quantity computed on three meshes."""
+                     ratio_32: float | None = None, safety_factor: float = SAFETY_FACTOR,
+                     formal_order: float | None = None) -> GridConvergence:
+    """Observed order, extrapolated value and GCI of one quantity computed on three meshes.
+
+    ``formal_order``: the order the discretisation can reach.  An observed order above it is
+    not credible (the meshes are not in the asymptotic range, or errors cancel): the formal
+    order is used instead and the safety factor becomes 3 (Roache 1998, for an order that
+    the data do not confirm).  ``band_coarse`` is the band of the coarsest mesh's value:
+    the safety factor times its distance from the extrapolated value.
+    """
     r21 = float(ratio_21)
     r32 = float(ratio_32 if ratio_32 is not None else ratio_21)
     if r21 <= 1.0 or r32 <= 1.0:
@@ -111,16 +122,19 @@ def grid_convergence(fine: float, medium: float, coarse: float, ratio_21: float,
     ea21 = abs(e21 / f1) if f1 else math.inf
     if abs(e21) <= ROUND_OFF * scale and abs(e32) <= ROUND_OFF * scale:
         return GridConvergence(f1, f2, f3, r21, r32, "converged to round-off", None, f1, ea21, 0.0, 0.0, 0.0,
-                               0.0, None)
+                               0.0, None, band_coarse=abs(f3 - f1))
     if abs(e21) <= ROUND_OFF * scale:
         # the two finest agree while the coarse one differs: no order can be read, the band is e32 on mesh 2
         return GridConvergence(f1, f2, f3, r21, r32, "converged to round-off", None, f1, ea21, 0.0, 0.0, None,
-                               0.0, None)
+                               0.0, None, band_coarse=abs(f3 - f1))
     p = observed_order(e21, e32, r21, r32)
     behaviour = "oscillatory" if e32 / e21 < 0 else "monotone"
     if not math.isfinite(p) or p <= 0.0 or abs(e21) >= abs(e32):
         # the change does not shrink as the mesh is refined: Richardson extrapolation does not apply
         return _unconfirmed(f1, f2, f3, r21, r32)
+    observed, capped = p, formal_order is not None and p > formal_order
+    if capped:
+        p, safety_factor = float(formal_order), UNCONFIRMED_SAFETY_FACTOR
     f_ext = (r21 ** p * f1 - f2) / (r21 ** p - 1.0)
     e_ext = abs((f_ext - f1) / f_ext) if f_ext else math.inf
     gci21 = safety_factor * ea21 / (r21 ** p - 1.0)
@@ -129,8 +143,9 @@ def grid_convergence(fine: float, medium: float, coarse: float, ratio_21: float,
     band = safety_factor * abs(e21) / (r21 ** p - 1.0)
     # Roache (1998): GCI_23 = r^p GCI_12 in the asymptotic range (relative GCIs; f1 ~ f2 there)
     asymptotic = gci32 / (r21 ** p * gci21) if gci21 > 0 else None
-    return GridConvergence(f1, f2, f3, r21, r32, behaviour, p, f_ext, ea21, e_ext, gci21, gci32, band,
-                           asymptotic)
+    return GridConvergence(f1, f2, f3, r21, r32, behaviour, observed, f_ext, ea21, e_ext, gci21, gci32, band,
+                           asymptotic, band_coarse=safety_factor * abs(f3 - f_ext), order_used=p,
+                           order_capped=capped)
 
 
 def _unconfirmed(f1: float, f2: float, f3: float, r21: float, r32: float) -> GridConvergence:
@@ -140,5 +155,6 @@ def _unconfirmed(f1: float, f2: float, f3: float, r21: float, r32: float) -> Gri
     band = UNCONFIRMED_SAFETY_FACTOR * change / denominator
     gci = band / abs(f1) if f1 else math.inf
     ea21 = abs((f2 - f1) / f1) if f1 else math.inf
+    # the coarsest value's band: its distance from the finest, plus the finest's own band
     return GridConvergence(f1, f2, f3, r21, r32, "not converging", None, None, ea21, None, gci, None, band, None,
-                           order_assumed=True)
+                           order_assumed=True, band_coarse=abs(f3 - f1) + band, order_used=UNCONFIRMED_ORDER)

@@ -17,7 +17,9 @@ from rich.progress import Progress
 from rich.table import Table
 
 from .analyses.tilt import TiltResult, tilt_result, tilt_summary_keys, write_tilt_files
+from .analyses.tilt.report import tilt_section
 from .analyses.wear import WearRun, wear_in_case, wear_summary, wear_table, write_wear_files
+from .analyses.wear.report import wear_section
 from .case import Case
 from .comparison import Comparison, HandCapacity, compare_solved, hand_of
 from .errors import CaseError, PhysicsError
@@ -26,7 +28,8 @@ from .output import atomic_folder, print_table, write_all, write_json
 from .output.report import write_report
 from .provenance import CAUTION, __version__, versions
 from .solve import SolvedCase, SolveService
-from .verification import verification_rows
+from .verification import TableOrigin, load_table
+from .verification.store import verification_summary
 from .verification.mesh_study import mesh_study
 
 
@@ -47,11 +50,19 @@ class CaseResult:
 
 @dataclass(frozen=True)
 class Evidence:
-    """What backs the numbers of a run: the mesh study and the solver's verification table."""
+    """What backs the numbers of a run: the mesh study and the solver's verification table.
+
+    The table is the one ``clutchfe verify`` stored for this code and these versions; when it is
+    missing or stale the rows are empty, ``verification_passed`` is False and
+    ``verification_origin`` says which and why (a run never runs the suite itself)."""
 
     mesh_study: dict
     verification_rows: list
     verification_passed: bool
+
+    @property
+    def verification_origin(self) -> TableOrigin:
+        return getattr(self.verification_rows, "origin", None) or TableOrigin("fresh")
 
 
 def section_of(case: Case):
@@ -109,12 +120,13 @@ def analyse(case: Case, service: SolveService | None = None, fields: bool = True
 
 
 def gather_evidence(result: CaseResult, service: SolveService, progress=None) -> Evidence:
-    """The mesh study of the run's case (unless switched off) and the verification table."""
+    """The mesh study of the run's case (unless switched off) and the stored verification table
+    (read, never run here: ``clutchfe verify`` makes it once per installed version and code hash)."""
     step = progress or (lambda description: None)
     step("mesh study (two coarser meshes)")
     study = _mesh_study_or_reason(result, service)
     step("verification table")
-    rows, passed = verification_rows()
+    rows, passed = load_table()
     return Evidence(study, rows, passed)
 
 
@@ -202,12 +214,22 @@ def run_case(case: Case, folder: Path, console, service: SolveService | None = N
             write_case_files(result, tmp)
             step("report")
             summary["report_pdf"] = write_report(case, summary, tmp, evidence.verification_rows,
-                                                 evidence.verification_passed)
+                                                 evidence.verification_passed, report_sections(result, summary, tmp))
             write_json(tmp / "summary.json", summary)       # once, last: every stage has spoken
         step("done")
     print_table(console, case, summary, folder,
                 extra_tables=[wear_table(summary)] if result.wear is not None else [])
     return summary
+
+
+def report_sections(result: CaseResult, summary: dict, folder: Path) -> dict:
+    """The report section of each analysis that ran, by name."""
+    sections = {}
+    if result.tilt is not None:
+        sections["tilt"] = tilt_section(summary, folder)
+    if result.wear is not None:
+        sections["wear"] = wear_section(summary, folder, result.wear.results[-1].verdict)
+    return sections
 
 
 def write_case_files(result: CaseResult, folder: Path) -> None:
@@ -219,6 +241,41 @@ def write_case_files(result: CaseResult, folder: Path) -> None:
         write_tilt_files(result.tilt, folder)
     if result.wear is not None:
         write_wear_files(result.wear, result.case, result.hand, folder)
+
+
+def _run_verdict(summary: dict, result: CaseResult, evidence: Evidence | None) -> None:
+    """The verdict of the whole run: the comparison's, the worn-in state's, and every failed
+    criterion of the run named (allowable pressure, partial contact, required torque, mesh
+    convergence), in the verdict and in the warnings alike."""
+    failed = list(result.comparison.failed_criteria)
+    verdict = [result.comparison.verdict]
+    if result.wear is not None:
+        worn = result.wear.results[-1]
+        verdict.append("Worn in: " + worn.verdict)
+        failed += [f"{name} (worn in)" for name in worn.failed_criteria if f"{name} (worn in)" not in failed]
+        for w in worn.warnings:
+            if w.startswith("WARNING") and f"Worn in: {w}" not in summary["warnings"]:
+                summary["warnings"].append(f"Worn in: {w}")
+    study = evidence.mesh_study if evidence is not None else {}
+    if study and not study.get("skipped") and not study.get("converged", True):
+        failed.append("mesh convergence")
+        words = f"WARNING: THE MESH STUDY IS NOT CONVERGED: {study.get('verdict', '')}".strip()
+        summary["warnings"].append(words)
+        verdict.append(words)
+    if evidence is not None:
+        missing = evidence.verification_origin.warning()
+        if missing:                       # no evidence for the solver on this installation: say so
+            summary["warnings"].append(missing)
+            verdict.append("Evidence: " + missing[0].upper() + missing[1:] + ".")
+        elif evidence.verification_rows and not evidence.verification_passed:
+            failed.append("solver verification")
+            words = "WARNING: THE SOLVER FAILS ITS VERIFICATION TABLE ON THIS INSTALLATION: do not rely on this run."
+            summary["warnings"].append(words)
+            verdict.append(words)
+    if failed:
+        verdict.append("Failed criteria: " + ", ".join(failed) + ".")
+    summary["failed_criteria"] = failed
+    summary["verdict"] = " ".join(verdict)
 
 
 def summary_of(result: CaseResult, evidence: Evidence | None = None) -> dict:
@@ -258,8 +315,7 @@ def summary_of(result: CaseResult, evidence: Evidence | None = None) -> dict:
     summary["versions"] = versions()
     summary["caution"] = CAUTION
     if evidence is not None:
-        rows = evidence.verification_rows
         summary["mesh_study"] = evidence.mesh_study
-        summary["verification"] = {"all_passed": evidence.verification_passed, "checks": len(rows),
-                                   "failed": sum(not r.passed for r in rows)}
+        summary["verification"] = verification_summary(evidence.verification_rows, evidence.verification_passed)
+    _run_verdict(summary, result, evidence)
     return summary

@@ -100,6 +100,15 @@ SCHEMA: dict[str, dict[str, Key]] = {
                          "plate clutch \"disc\" (both disc faces) or \"plates\" (the faces of the plates)", str,
                          default=lambda c: "cone" if c["kind"] == "cone" else "disc",
                          choices=("cone", "cup", "disc", "plates")),
+        "end_shape": Key("", "how the two ends of the lining are cut across its thickness (a modelling choice "
+                         "that moves the pressure at the ends): \"normal_to_axis\" (end faces in planes normal "
+                         "to the axis; on a cone a parallelogram section), \"normal_to_face\" (square to the "
+                         "friction face, a rectangle) or \"chamfer\" (a 45° chamfer through the whole "
+                         "thickness: the friction face still spans r1 … r2 and the bond runs on one lining "
+                         "thickness past each end, a trapezoid; the carrier must reach that far). On a plate "
+                         "the face is itself normal to the axis, so \"normal_to_axis\" and \"normal_to_face\" "
+                         "are the same square end", str, default="normal_to_axis",
+                         choices=("normal_to_axis", "normal_to_face", "chamfer")),
         "allowable_pressure": Key("MPa", "allowable contact pressure of the lining (manufacturer's data); "
                                   "optional, compared with the peak pressure", low=0.0),
     },
@@ -190,6 +199,16 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "guidance": Key("", "how the pressed part's tilt is held: \"held\" by its guidance (shaft, splines, "
                         "bearings; the tilting moment is reported) or \"self_aligning\" (free tilt, zero moment)",
                         str, default="held", choices=("held", "self_aligning")),
+        "tilt_pivot_offset": Key("mm", "where on the axis the pressed part tilts about (with self_aligning: "
+                                 "the centre it swivels about), as the axial distance from the middle of "
+                                 "its friction face; > 0 towards the part's loaded back face, < 0 into the "
+                                 "mate; 0 = the middle of the friction face. Allowed: within two outer "
+                                 "radii (|value| ≤ 2 × interface.outer_radius); further away a tilt is "
+                                 "mostly a radial offset", default=0.0),
+        "guided_at": Key("", "where the guidance holds the pressed part across the axis: \"load_ring\" "
+                         "(where its axial load enters: the ring-load radius on its back face, or the "
+                         "middle of the back face) or \"bore\" (the middle of its bore: a splined shaft "
+                         "or a bearing seat)", str, default="load_ring", choices=("load_ring", "bore")),
     },
     "requirement": {
         "required_torque": Key("N·m", "torque the clutch must transmit (optional)", low=0.0),
@@ -206,8 +225,13 @@ SCHEMA: dict[str, dict[str, Key]] = {
                                  low=0.0),
         "element_size": Key("mm", "largest element size in the bodies",
                             default=lambda c: _r(4.0 * c["mesh.interface_element_size"], 3), low=0.0),
-        "lining_layers": Key("", "elements through the lining thickness", int, default=2,
-                             low=1, high=20, low_inclusive=True, high_inclusive=True),
+        "lining_layers": Key("", "elements through the lining thickness (4 by default, so that the mesh study's "
+                             "two finer meshes at refinement ratio 1.5 have exactly 6 and 9)", int, default=4,
+                             low=1, high=40, low_inclusive=True, high_inclusive=True),
+        "refinement": Key("", "refine the whole mesh by this factor: every element size divided by it, the lining "
+                          "layers and the thin-part element counts multiplied by it (2 = twice as fine in every "
+                          "direction, about 4 times the elements)", default=1.0, low=0.1, high=16.0,
+                          low_inclusive=True, high_inclusive=True),
         "element_order": Key("", "1 = linear, 2 = quadratic triangles", int, default=2, choices=(1, 2)),
         "angular_divisions": Key("", "angles of the contact grid around the axis for tilt and offset "
                                  "(harmonics 0 … half of it)", int, default=48, low=8, high=256,
@@ -225,10 +249,16 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "target_wear_volume": Key("mm³", "or simply: wear until this volume is worn off the lining", low=0.0),
         "step_cap": Key("", "largest wear increment of a step, as a fraction of the current elastic approach "
                         "(the wear depth over which the present departure from uniform wear would wear off; "
-                        "on a Winkler lining its compression)",
+                        "on a Winkler lining its compression); the steps are second order (BDF2): at 0.05 the "
+                        "path is within 0.1 % of the exact Winkler path, and the error falls with the square "
+                        "of the cap",
                         default=0.05, low=0.0, high=1.0, high_inclusive=True),
-        "steady_tolerance": Key("", "steady state: relative change of p·r over the contact in a step, per "
-                                "elastic approach worn in that step, below this", default=1e-3, low=0.0, high=0.5),
+        "steady_tolerance": Key("", "steady state (worn in): the rms departure of the pack's p·r (all faces' "
+                                "pressures summed at each radius) from uniform wear, relative to that of uniform "
+                                "pressure (1 new, 0 worn in), at or below this; it bounds the size of ξ (to within 2 % for "
+                                "r1/r2 ≥ 0.5), so 0.001 puts the torque within 0.1 % of the gap between the "
+                                "uniform-pressure and uniform-wear torques from its worn-in value",
+                                default=1e-3, low=0.0, high=0.5),
         "max_wear_depth": Key("mm", "lining wear limit (default: 80 % of the lining thickness)",
                               default=lambda c: _r(0.8 * c["lining.thickness"], 4), low=0.0),
         "max_steps": Key("", "most wear steps", int, default=400, low=1, low_inclusive=True, high=100000,
@@ -237,7 +267,10 @@ SCHEMA: dict[str, dict[str, Key]] = {
     "verification": {
         "mesh_study": Key("", "solve on three meshes (refinement ratio below) and report observed order, "
                           "Richardson extrapolation and the grid convergence index", bool, default=True),
-        "refinement_ratio": Key("", "constant refinement ratio between the three meshes", default=1.5,
+        "refinement_ratio": Key("", "refinement ratio between the three meshes of the mesh study: the run's mesh and "
+                                "two finer ones with every size divided by the ratio and its square, every count "
+                                "(lining layers included) multiplied: lining_layers times the ratio squared must be "
+                                "whole for similar meshes, e.g. 4 layers at ratio 1.5 or 2", default=1.5,
                                 low=1.3, high=3.0, low_inclusive=True, high_inclusive=True),
     },
 }

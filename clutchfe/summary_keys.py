@@ -59,8 +59,15 @@ SUMMARY_KEYS: tuple[SummaryKey, ...] = (
         ("effective_radius_mm", "mm", "effective friction radius of the FE torque, T_fe sin α / (n μ W)"),
         ("radius_uniform_pressure_mm", "mm", "effective radius of the uniform-pressure method"),
         ("radius_uniform_wear_mm", "mm", "effective radius of the uniform-wear method, (r1 + r2)/2"),
-        ("peak_pressure_MPa", "MPa", "highest FE contact pressure on any face (on the (r, θ) grid when tilted); "
-                                     "an edge peak grows as the mesh is refined"),
+        ("peak_pressure_MPa", "MPa", "highest nodal FE contact pressure on any face (on the (r, θ) grid when "
+                                     "tilted); at a lining end an edge concentration that grows as the mesh is "
+                                     "refined: shown, not judged"),
+        ("design_peak_pressure_MPa", "MPa", "design peak: the highest mean pressure over a band of 10 % of the face "
+                                            "width along the face (worst place, worst angle when tilted); "
+                                            "mesh-converged, judged against the allowable"),
+        ("design_peak_radius_mm", "mm", "radius of the middle of the design-peak band"),
+        ("design_peak_surface", "", "friction face of the design peak"),
+        ("design_peak_band_mm", "mm", "width of the design-peak band along the face"),
         ("mean_pressure_MPa", "MPa", "average normal pressure W over the face area: the uniform-pressure "
                                      "value, the same as uniform_pressure_MPa, not an FE result"),
         ("contact_area_fraction", "", "share of the friction area in contact (FE; on the (r, θ) grid when tilted)"),
@@ -83,19 +90,28 @@ SUMMARY_KEYS: tuple[SummaryKey, ...] = (
         ("peak_pressure_surface", "", "name of the friction face with the FE peak pressure"),
         ("peak_pressure_over_uniform_wear_peak", "", "FE peak pressure / uniform-wear peak pressure (the ratio)"),
         ("faces_per_modelled_surface", "", "friction faces each modelled face stands for (1: all modelled)"),
-        ("verdict", "", "the comparison in plain words: which hand formula is conservative, where R_eff sits, "
-                        "the margins"),
+        ("verdict", "", "the run in plain words: which hand formula is conservative, where R_eff sits, the "
+                        "margins, the worn-in state when worn in, and every failed criterion by name"),
+        ("failed_criteria", "", "names of the failed criteria (required torque, allowable pressure, partial "
+                                "contact, mesh convergence, and the same '(worn in)'); empty when none failed"),
         ("required_torque_Nm", "N·m", "required torque of the [requirement] table (null without one)"),
         ("service_factor", "", "service factor of the [requirement] table (null without one)"),
         ("capacity_margin_fe", "", "FE torque / (required torque × service factor) − 1, as a fraction "
                                    "(null without a requirement); below 0 the clutch slips"),
         ("capacity_margin_uniform_pressure", "", "the same margin for the uniform-pressure torque"),
         ("capacity_margin_uniform_wear", "", "the same margin for the uniform-wear torque"),
-        ("surfaces", "", "one entry per modelled friction face: name, axial_force_N, axial_force_share, "
-                         "axial_force_balance_error, torque_Nm, torque_share, effective_radius_mm, "
-                         "peak_pressure_MPa, contact_area_fraction"),
-        ("peak_pressure_over_allowable", "", "FE peak pressure / the lining's allowable pressure "
-                                             "(null without lining.allowable_pressure)"),
+        ("surfaces", "", "one entry per modelled friction face. The faces act in series along the axis (each "
+                         "carries the whole clamp force W) and in parallel for the torque: name, axial_force_N, "
+                         "axial_force_over_clamp_force (1 for every face of an ideal pack), axial_force_balance_error, "
+                         "torque_Nm, torque_share (of the total torque), effective_radius_mm, peak_pressure_MPa "
+                         "(nodal), design_peak_pressure_MPa and design_peak_radius_mm (band mean), "
+                         "contact_area_fraction; on a tilted face the peaks and contact are those of the (r, θ) grid, "
+                         "as at the top level"),
+        ("peak_pressure_over_allowable", "", "nodal (edge) peak pressure / the lining's allowable pressure, for "
+                                             "information (null without lining.allowable_pressure)"),
+        ("allowable_pressure_MPa", "MPa", "the lining's allowable pressure (null without one)"),
+        ("design_peak_over_allowable", "", "design peak / allowable pressure: above 1 the allowable is exceeded "
+                                           "(null without an allowable)"),
         ("warnings", "", "list of warnings in plain words: the case's, the comparison's and the wear-in's"),
     )),
     *_k("solve", True, (
@@ -119,13 +135,21 @@ SUMMARY_KEYS: tuple[SummaryKey, ...] = (
         ("residual_tilt_deg", "deg", "tilt of the pressed part under load (the imposed tilt when held)"),
         ("floating_tilt_deg", "deg", "per floating body that may tilt (name → value): its tilt under load"),
         ("open_area_fraction", "", "share of the friction area that is open (1 − contact_area_fraction)"),
+        ("tilt_pivot_offset_mm", "mm", "axial distance of the tilt pivot from the middle of the friction face "
+                                       "(misalignment.tilt_pivot_offset; > 0 towards the loaded back face)"),
+        ("tilt_pivot_z_mm", "mm", "axial position z of the tilt pivot on the axis, in the section's "
+                                  "coordinates (the z_mm of pressure.csv)"),
+        ("guided_at", "", '"load_ring" or "bore": where the guidance holds the pressed part across the axis'),
+        ("guidance_radial_force_N", "N", "force across the axis the guidance of the pressed part carries "
+                                         "(the contact's net radial force on it)"),
     )),
     *_k("wear-in", False, (
         ("torque_worn_in_Nm", "N·m", "FE torque capacity at the end of the wear-in"),
         ("capacity_position_worn_in", "", "capacity position ξ at the end of the wear-in (0 = uniform wear)"),
         ("effective_radius_worn_in_mm", "mm", "FE effective radius at the end of the wear-in"),
         ("peak_pressure_worn_in_MPa", "MPa", "FE peak pressure at the end of the wear-in"),
-        ("worn_in_converged", "", "true when p·r became steady (the interface wore in)"),
+        ("worn_in_converged", "", "true when a state of the wear-in met the steady test: its "
+                                  "uniform_wear_departure (wear.csv) at or below wear.steady_tolerance"),
         ("wear_steps", "", "number of wear steps taken"),
         ("wear_stop_reason", "", 'why the wear-in stopped: "steady", "sliding" (duty done), "volume" '
                                  '(target volume), "depth limit" (lining limit) or "step limit"'),
@@ -133,6 +157,10 @@ SUMMARY_KEYS: tuple[SummaryKey, ...] = (
         ("contact_area_fraction_worn_in", "", "share of the friction area in contact at the end of the wear-in"),
         ("p_r_spread_worn_in", "", "(max − min)/mean of p·r over the contact at the end, largest over the "
                                    "faces; 0 is exact uniform wear"),
+        ("uniform_wear_departure_worn_in", "", "departure of the pack's p·r (all faces' pressures summed at each "
+                                               "radius, times r) from uniform wear at the end, rms, relative to "
+                                               "that of uniform pressure: 1 new, 0 worn in; ξ is at most κ × it in size, κ = "
+                                               "1.005 for r1/r2 = 2/3, 1.09 for 1/6"),
         ("wear_coefficient_mm3_per_N_m", "mm³/(N·m)", "Archard wear coefficient used (wear.wear_coefficient)"),
         ("wear_volume_mm3", "mm³", "volume worn off the lining, all friction faces"),
         ("wear_depth_max_mm", "mm", "deepest wear of the lining"),
@@ -140,6 +168,7 @@ SUMMARY_KEYS: tuple[SummaryKey, ...] = (
         ("wear_engagements", "", "engagements that sliding stands for (null without slip_speed and slip_time)"),
         ("capacity_margin_fe_worn_in", "", "FE capacity margin at the end of the wear-in, as a fraction "
                                            "(null without a requirement)"),
+        ("wear_steady_step", "", _STEADY + "the first step (row of wear.csv) that met the steady test"),
         ("steady_wear_volume_mm3", "mm³", _STEADY + "the wear volume at which p·r first became steady"),
         ("steady_engagements", "", _STEADY + "engagements to the steady state (null without a duty)"),
     )),
@@ -152,7 +181,10 @@ SUMMARY_KEYS: tuple[SummaryKey, ...] = (
         ("mesh_study", "", "the mesh study: the three meshes (sizes, triangles, results), observed order, "
                            "Richardson value and GCI per quantity, converged, verdict; only skipped (the reason) "
                            "when switched off or a coarser mesh could not be solved"),
-        ("verification", "", "the solver's verification table: all_passed, checks, failed"),
+        ("verification", "", "the solver's verification table as `clutchfe verify` stored it: state (\"stored\", "
+                             "or \"missing\" / \"stale\" with the reason and the command that makes it; then no "
+                             "rows and all_passed null), all_passed, checks, failed, made (UTC), code_hash, table "
+                             "(the stored file)"),
     )),
     *_k("report", True, (
         ("report_pdf", "", 'file name of the PDF report ("report.pdf"), or why it was not written'),

@@ -1,4 +1,4 @@
-"""One BLAS thread around small dense work (design.md §6: multithreaded BLAS made it 15 x slower).
+"""One BLAS thread around small dense work (docs/solver-notes.md: multithreaded BLAS made it 15 x slower).
 
 threadpoolctl scans the loaded libraries each time ``threadpool_limits`` is entered (about 2 ms);
 one controller made once keeps re-solves in a loop cheap.

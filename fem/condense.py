@@ -7,12 +7,12 @@ factorisations' worth of triangular solves, so instead:
 1. rotate the displacements of every contact node into (normal, tangential)
    components, so that G touches only the normal components;
 2. order those normal components last, everything else by a fill-reducing
-   ordering (multiple minimum degree on AᵀA + A, design.md §6);
+   ordering (multiple minimum degree on AᵀA + A, docs/solver-notes.md);
 3. factorise once without pivoting; the trailing block of the factors is the
    Schur complement S onto the normal components (K = LU with the last block
    giving S = L₂₂U₂₂), so C = Gₙᵀ S⁻¹ Gₙ is a small dense solve.
 
-design.md §6 measured this at 1.3–1.8 × one linear solve.  The same factors
+Measured at 1.3–1.8 × one linear solve (docs/solver-notes.md).  The same factors
 then serve every solve with K.  If the matrix asks for pivoting, or a contact
 node's dofs are held or shared, :func:`condense` returns None and the caller
 falls back to one solve per contact force.

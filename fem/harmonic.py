@@ -148,7 +148,7 @@ class HarmonicStiffness:
 
 def _factor_solve(K, B):
     from scipy.sparse.linalg import splu
-    # same ordering choice as fem/solve.py (design.md §6)
+    # same ordering choice as fem/solve.py (docs/solver-notes.md)
     lu = splu(sp.csc_matrix(K), permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
               options=dict(SymmetricMode=True))
     return lu.solve(np.asarray(B.toarray() if sp.issparse(B) else B))

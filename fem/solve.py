@@ -29,7 +29,7 @@ def _clock(timings, key):
 
 def factorise(K):
     # MMD on A^T + A with symmetric mode keeps the fill-reducing order through
-    # pivoting; design.md §6 measured COLAMD 2x and unsymmetric pivoting 10x slower
+    # pivoting; docs/solver-notes.md: COLAMD measured 2x and unsymmetric pivoting 10x slower
     return splu(sp.csc_matrix(K), permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
                 options=dict(SymmetricMode=True))
 

@@ -10,12 +10,17 @@ U_r, U_z of one vertex (the body's "guide ring") and come back as follows:
   * shift: held by the guidance (shaft, splines); the pressed body's radial offset is an
     imposed rigid shift, every other free body stays centred;
   * tilt of the pressed body: imposed (``self_aligning=False``: rotation φ about a
-    diameter in the plane through the middle of its friction face; the tilting moment
-    the guidance carries is reported) or free (``self_aligning=True``: an unknown fixed
-    by zero moment, like the axial approach is fixed by the force balance);
+    diameter through the pivot (0, 0, z0) on the axis, by default at the middle of its
+    friction face (``pivot_z``); the tilting moment the guidance carries is reported) or
+    free (``self_aligning=True``: an unknown fixed by zero moment about the pivot, like
+    the axial approach is fixed by the force balance);
   * tilt of floating bodies (plate-pack discs): always free, zero moment.
 Rotation by φ about the y axis through (0, 0, z0): u_r = φ (z − z0) cos θ,
-u_θ = −φ (z − z0) sin θ, u_z = −φ r cos θ.
+u_θ = −φ (z − z0) sin θ, u_z = −φ r cos θ; so a tilt about z0 is the tilt about z1 plus
+the radial shift φ (z1 − z0) (small-rotation kinematics).  The guide ring of the pressed
+body (``guide``): "load_ring", the vertex where its axial load enters (the ring-load
+radius on the load face, or the middle of the load face), or "bore", the vertex at the
+axial middle of its bore (its smallest radius); it is part of the condensation.
 """
 from __future__ import annotations
 
@@ -65,18 +70,36 @@ class TiltedResult:
     cg_iterations: int
     timings: dict[str, float] = field(default_factory=dict)
     grid: object = None                 # fft_contact.GridSolution, a start for a nearby tilt
+    pivot_z: float = math.nan           # z of the pivot on the axis the pressed body tilted about, mm
+    radial_force: tuple[float, float] = (0.0, 0.0)   # contact force across the axis on the pressed
+    #                                     body, N (x, y): what its guidance carries (with opposite sign)
 
 
 _threads = None
 
 
 def _one_thread():
-    """A BLAS limit of one thread (design.md §6) from a controller found once: looking the
+    """A BLAS limit of one thread (docs/solver-notes.md) from a controller found once: looking the
     libraries up again costs milliseconds, as much as a whole warm-started tilt."""
     global _threads
     if _threads is None:
         _threads = ThreadpoolController()
     return _threads.limit(limits=1)
+
+
+GUIDES = ("load_ring", "bore")
+
+
+def _bore_vertex(system, body: int) -> int:
+    """The vertex of the body on its smallest radius (its bore) nearest the bore's axial middle."""
+    mesh = system.mesh
+    verts = np.unique(mesh.t[:, np.asarray(system.model.element_body) == body])
+    r = mesh.p[0, verts]
+    bore = verts[r <= r.min() + 1e-9 * r.max()]
+    if r.min() <= 0.0:
+        raise ValueError(f"body {system.model.body_names[body]!r} reaches the axis: it has no bore to be guided in")
+    z = mesh.p[1, bore]
+    return int(bore[np.argmin(np.abs(z - 0.5 * (z.min() + z.max())))])
 
 
 def _ring_vertex(system, body: int, face: str | None, radius: float | None) -> int:
@@ -95,11 +118,16 @@ def _ring_vertex(system, body: int, face: str | None, radius: float | None) -> i
 class TiltedContactSolver:
     """Condense harmonics 0 … M/2 once; :meth:`solve` any tilt, offset or load level."""
 
-    def __init__(self, model: FeModel, pressed: str, grid: int = 48, base: ContactSolver | None = None):
+    def __init__(self, model: FeModel, pressed: str, grid: int = 48, base: ContactSolver | None = None,
+                 guide: str = "load_ring"):
         """``base``: the axisymmetric solver of the same model, when one is at hand (it is
-        harmonic 0; passing it saves its factorisation)."""
+        harmonic 0; passing it saves its factorisation).  ``guide``: where the pressed body is
+        held across the axis, one of :data:`GUIDES` (module docstring)."""
         if grid < 4 or grid % 2:
             raise ValueError(f"the θ grid needs an even number of angles >= 4, got {grid}")
+        if guide not in GUIDES:
+            raise ValueError(f"guide = {guide!r}: allowed {', '.join(GUIDES)}")
+        self.guide_at = guide
         t0 = time.perf_counter()
         self.timings = {}
         self.base = base = base if base is not None else ContactSolver(model)
@@ -117,8 +145,9 @@ class TiltedContactSolver:
             self.guide = {}
             for j in base.prep.free_bodies:
                 on_load = load is not None and j == self.pressed
-                self.guide[j] = _ring_vertex(system, j, load.face if on_load else None,
-                                             load.radius if on_load and isinstance(load, RingLoad) else None)
+                self.guide[j] = _bore_vertex(system, j) if guide == "bore" and j == self.pressed else \
+                    _ring_vertex(system, j, load.face if on_load else None,
+                                 load.radius if on_load and isinstance(load, RingLoad) else None)
             pins = np.concatenate([hs.basis.nodal_dofs[:2, v] for v in self.guide.values()]) \
                 if self.guide else np.zeros(0, np.int64)
             self.timings["prepare_axisymmetric"] = time.perf_counter() - t0
@@ -138,7 +167,7 @@ class TiltedContactSolver:
         on_pressed = (self.body_a == self.pressed) | (self.body_b == self.pressed)
         if not on_pressed.any():
             raise ValueError(f"body {pressed!r} has no friction face")
-        self.pivot_z = float(self.z[on_pressed].mean())
+        self.pivot_z = float(self.z[on_pressed].mean())     # the middle of the friction face: the default pivot
 
     def _side(self, j: int) -> np.ndarray:
         """+1 where body j is side B of the node's face, −1 where side A, 0 elsewhere."""
@@ -150,23 +179,26 @@ class TiltedContactSolver:
 
     def solve(self, tilt_deg: float = 0.0, offset_mm: float = 0.0, self_aligning: bool = False,
               load_scale: float = 1.0, start: TiltedResult | None = None,
-              gaps: list[np.ndarray] | None = None) -> TiltedResult:
+              gaps: list[np.ndarray] | None = None, pivot_z: float | None = None) -> TiltedResult:
         """Contact at one tilt/offset/load level.  ``start``: a solution of a nearby problem
         (the previous value of a sweep) whose closed set and forces seed the active set; it
         saves sweeps, the answer is the same to the solver tolerance.  ``gaps``: axisymmetric
-        initial gaps per interface node replacing the model's, as for :meth:`ContactSolver.solve`."""
+        initial gaps per interface node replacing the model's, as for :meth:`ContactSolver.solve`.
+        ``pivot_z``: z (mm) of the point on the axis the pressed body tilts about (default
+        :attr:`pivot_z`, the middle of its friction face)."""
         t0 = time.perf_counter()
         base, M = self.base, self.M
         cos, sin = np.cos(self.theta), np.sin(self.theta)
         phi = math.radians(tilt_deg)
-        imposed = phi * self.rotation_gap(self.pressed, self.pivot_z) + \
-            offset_mm * self._side(self.pressed) * self.nr
+        z0 = self.pivot_z if pivot_z is None else float(pivot_z)
+        shift = self._side(self.pressed) * self.nr          # (k,) gap per unit shift across the axis, × cos θ
+        imposed = phi * self.rotation_gap(self.pressed, z0) + offset_mm * shift
         g0 = base.g0 if gaps is None else np.concatenate([np.asarray(x, float) for x in gaps])
         g = (g0 + load_scale * base.g_load)[:, None] + imposed[:, None] * cos[None]
         cols = [np.repeat(base.B[:, c][:, None], M, axis=1) for c in range(base.B.shape[1])]
         e = list(load_scale * base.e)
         free_tilt = [j for j in base.prep.free_bodies if j != self.pressed or self_aligning]
-        pivots = {j: (self.pivot_z if j == self.pressed else float(self.hs.basis.mesh.p[1, self.guide[j]]))
+        pivots = {j: (z0 if j == self.pressed else float(self.hs.basis.mesh.p[1, self.guide[j]]))
                   for j in free_tilt}
         for j in free_tilt:
             b = self.rotation_gap(j, pivots[j])
@@ -182,9 +214,11 @@ class TiltedContactSolver:
         approach = {names[j]: float(sol.delta[c]) for c, j in enumerate(base.prep.free_bodies)}
         tilt = {names[j]: (float(sol.delta[nb + 2 * c]), float(sol.delta[nb + 2 * c + 1]))
                 for c, j in enumerate(free_tilt)}
-        bp = self.rotation_gap(self.pressed, self.pivot_z)
+        bp = self.rotation_gap(self.pressed, z0)
         moment = (float(np.sum(sol.lam * bp[:, None] * cos[None])),
                   float(np.sum(sol.lam * bp[:, None] * sin[None])))
+        radial = (float(np.sum(sol.lam * shift[:, None] * cos[None])),
+                  float(np.sum(sol.lam * shift[:, None] * sin[None])))
         balance = 0.0
         for c in range(nb):
             part = B[:, :, c] * sol.lam
@@ -193,7 +227,7 @@ class TiltedContactSolver:
         timings = dict(self.timings, contact=time.perf_counter() - t0)
         timings["total"] = timings["prepare"] + timings["contact"]
         return TiltedResult(self._interfaces(sol), approach, tilt, moment, M // 2, balance,
-                            sol.iterations, sol.cg_iterations, timings, sol)
+                            sol.iterations, sol.cg_iterations, timings, sol, z0, radial)
 
     def _interfaces(self, sol) -> list[GridInterface]:
         out, start = [], 0

@@ -16,9 +16,15 @@ SECTION_BUILDERS = {"cone": cone_section, "plate": plate_section}
 def build_section(case) -> Section:
     """The section of a validated case, with the case's mesh controls attached."""
     section = SECTION_BUILDERS[case.kind](case)
-    section.face_size = case.mesh.interface_element_size
-    section.edge_size = case.mesh.edge_element_size
-    section.body_size = case.mesh.element_size
+    # mesh.refinement scales every size and count alike, so refined meshes are geometrically similar
+    refinement = case.mesh.refinement
+    section.face_size = case.mesh.interface_element_size / refinement
+    section.edge_size = case.mesh.edge_element_size / refinement
+    section.body_size = case.mesh.element_size / refinement
+    section.refinement = refinement
+    for region in section.regions:
+        if region.lining_layers:
+            region.lining_layers = max(1, round(region.lining_layers * refinement))
     section.element_order = case.mesh.element_order
     return section
 

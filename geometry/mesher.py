@@ -134,7 +134,7 @@ def _build(gmsh, section: Section) -> None:
 
     for name in dict.fromkeys(reg.name for reg in section.regions):
         members = [s for reg, s in zip(section.regions, surfaces) if reg.name == name]
-        gmsh.model.addPhysicalGroup(2, members, name=name)      # one group per name: see design.md §6
+        gmsh.model.addPhysicalGroup(2, members, name=name)      # one group per name: see docs/solver-notes.md
     named: dict[str, list[int]] = {}
     for reg, signed in zip(section.regions, loops):
         for k, name in enumerate(reg.edge_names):
@@ -149,12 +149,15 @@ def _build(gmsh, section: Section) -> None:
     field.setNumber(near_face, "Sampling", 200)
     near_ends = field.add("Distance")
     field.setNumbers(near_ends, "PointsList", [tag[p] for p in section.refine_points])
+    # the graded zones are fixed lengths (the sizes of the unrefined mesh), so that meshes of
+    # different mesh.refinement are geometrically similar: the same zones, finer elements
+    k = section.refinement
     grade_face = _grade(field, near_face, section.face_size, section.body_size,
-                        section.face_size, 4.0 * section.body_size)
+                        k * section.face_size, 4.0 * k * section.body_size)
     grade_ends = _grade(field, near_ends, section.edge_size, section.body_size,
-                        section.edge_size, 8.0 * section.face_size)
+                        k * section.edge_size, 8.0 * k * section.face_size)
     # thin parts (disc cores, separators, rims) get at least about two elements through
-    # their thickness; 2·area/perimeter is the thickness of a long strip
+    # their thickness (times the refinement); 2·area/perimeter is the thickness of a long strip
     caps = []
     for reg, surf in zip(section.regions, surfaces):
         if reg.lining_layers:
@@ -163,7 +166,8 @@ def _build(gmsh, section: Section) -> None:
         loop = np.array([section.points[p] for p in reg.loop])
         perimeter = np.linalg.norm(np.roll(loop, -1, axis=0) - loop, axis=1).sum()
         cap = field.add("Constant")
-        field.setNumber(cap, "VIn", min(section.body_size, max(area / perimeter, section.edge_size)))
+        field.setNumber(cap, "VIn", min(section.body_size, max(area / perimeter / section.refinement,
+                                                               section.edge_size)))
         field.setNumber(cap, "VOut", 1e22)
         field.setNumbers(cap, "SurfacesList", [surf])
         caps.append(cap)

@@ -65,9 +65,18 @@ def section_picture(section: Section, mesh: SectionMesh, path, title: str = "") 
     ax.set_ylabel("axial position z [mm]")
     ax.set_title(title or f"{section.kind} section: {len(mesh.triangles)} triangles, "
                  f"{len(mesh.points)} nodes")
-    ax.legend(loc="center left", bbox_to_anchor=(1.01, 0.5), fontsize=8, title="named faces")
+    ax.legend(loc="center left", bbox_to_anchor=(1.01, 0.5), fontsize=8,
+              title=f"named faces\n(lining ends: {lining_ends_words(section)})", title_fontsize=8)
     fig.tight_layout()
     fig.savefig(path, dpi=130)
+
+
+def lining_ends_words(section: Section) -> str:
+    """lining.end_shape in plain words, as the section picture shows it."""
+    if section.semi_cone_angle == 90.0 and section.lining_end_shape != "chamfer":
+        return "square to the face"              # a plate: normal to the axis = normal to the face
+    return {"normal_to_axis": "normal to the axis", "normal_to_face": "normal to the face",
+            "chamfer": "45° chamfer"}[section.lining_end_shape]
 
 
 def _draw_load_and_supports(ax, section: Section, mesh: SectionMesh) -> None:

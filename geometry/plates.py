@@ -5,6 +5,11 @@ The stack is built upwards along z from the back face of the counter plate
 are N discs and N − 1 separator plates between them.  The pressure plate is
 pushed along −z; discs and separators float axially (splines), their position
 set by the contact forces alone.
+
+The friction faces are normal to the axis, so a lining end normal to the axis and one
+normal to the face are the same square end (``lining.end_shape`` "normal_to_axis" or
+"normal_to_face": a rectangle r1 … r2, the original section); "chamfer" cuts each end at
+45° through the whole thickness (a trapezoid, see :func:`_lining`).
 """
 from __future__ import annotations
 
@@ -12,10 +17,11 @@ from ._sketch import Sketch
 from .section import Body, FrictionInterface, Section, check_section
 
 
-def _plate(sk: Sketch, body, material, inner, outer, z0, z1, r1, r2, bottom, top, keys, top_ring=None):
-    """A rectangle whose bottom and top edges are split at r1, r2 (and a ring-load radius on top)."""
-    bottom_pts = sorted({inner, r1, r2, outer})
-    top_pts = sorted({inner, r1, r2, outer} | ({top_ring} if top_ring else set()), reverse=True)
+def _plate(sk: Sketch, body, material, inner, outer, z0, z1, bottom_at, top_at, bottom, top, keys, top_ring=None):
+    """A rectangle whose bottom and top edges are split at the radii bottom_at, top_at (the ends of a
+    friction face or of a lining's bond) and at a ring-load radius on top."""
+    bottom_pts = sorted({inner, *bottom_at, outer})
+    top_pts = sorted({inner, *top_at, outer} | ({top_ring} if top_ring else set()), reverse=True)
     corners = [(r, z0) for r in bottom_pts] + [(r, z1) for r in top_pts]
     names = []
     for r, _ in zip(bottom_pts, bottom_pts[1:]):
@@ -27,11 +33,17 @@ def _plate(sk: Sketch, body, material, inner, outer, z0, z1, r1, r2, bottom, top
     sk.region(body, body, material, corners, names, keys=keys)
 
 
-def _lining(sk, body, material, r1, r2, z0, z1, face_name, face_on_top, layers):
+def _lining(sk, body, material, r1, r2, z0, z1, face_name, face_on_top, layers, bond):
+    """The lining between z0 and z1: friction face r1 … r2, bond bond[0] … bond[1] (= r1 … r2 for
+    square ends; one thickness wider at each end for a 45° chamfer)."""
+    # A chamfer through the whole thickness keeps the region four-cornered, as the mesher's structured
+    # quad needs (face and bond opposite, same node count).  It makes the friction face shorter than the
+    # bond; the friction face must stay r1 … r2 (the face that touches the mate, node for node), so
+    # the bond is the wider side and the carrier's face is split at the bond's ends instead.
     if face_on_top:
-        corners = [(r2, z1), (r1, z1), (r1, z0), (r2, z0)]
+        corners = [(r2, z1), (r1, z1), (bond[0], z0), (bond[1], z0)]
     else:
-        corners = [(r1, z0), (r2, z0), (r2, z1), (r1, z1)]
+        corners = [(r1, z0), (r2, z0), (bond[1], z1), (bond[0], z1)]
     sk.region(f"{body}_lining_{'top' if face_on_top else 'bottom'}", body, material, corners,
               [face_name, None, None, None], lining_layers=layers, keys=("lining.thickness",))
 
@@ -44,6 +56,8 @@ def plate_section(case) -> Section:
     t = lin.thickness
     lining = (lin.youngs_modulus, lin.poissons_ratio)
     layers = case.mesh.lining_layers
+    run = t if lin.end_shape == "chamfer" else 0.0      # the bond's run past each face end
+    bond = (r1 - run, r2 + run)
     sk = Sketch()
     bodies, interfaces = [], []
     ring = case.load.ring_radius if case.load.application == "ring" else None
@@ -73,7 +87,7 @@ def plate_section(case) -> Section:
         lining_below = carries_lining and below is not None
         lining_above = carries_lining and above is not None
         if lining_below:
-            _lining(sk, body, lining, r1, r2, z, z + t, below, False, layers)
+            _lining(sk, body, lining, r1, r2, z, z + t, below, False, layers, bond)
             z += t
         bottom_names = {r1: None if lining_below else below}
         top_names = {r2: None if lining_above else above}     # top edges run towards the axis
@@ -81,13 +95,14 @@ def plate_section(case) -> Section:
             bottom_names = {r: "counter_plate_back" for r in (inner, r1, r2)}
         if body == "pressure_plate":
             top_names = {"*": "pressure_plate_back"}
-        _plate(sk, body, material, inner, outer, z, z + thickness, r1, r2, bottom_names, top_names, keys,
+        _plate(sk, body, material, inner, outer, z, z + thickness, bond if lining_below else (r1, r2),
+               bond if lining_above else (r1, r2), bottom_names, top_names, keys,
                top_ring=ring if body == "pressure_plate" else None)
         if pos == 0:
             sk.regions[-1].edge_names[-1] = "counter_plate_bore"     # its radial seat
         z += thickness
         if lining_above:
-            _lining(sk, body, lining, r1, r2, z, z + t, above, True, layers)
+            _lining(sk, body, lining, r1, r2, z, z + t, above, True, layers, bond)
             z += t
         role = "supported" if pos == 0 else ("pressed" if body == "pressure_plate" else "floating")
         bodies.append(Body(body, role, label))
@@ -112,6 +127,6 @@ def plate_section(case) -> Section:
         kind="plate", points=sk.points, regions=sk.regions, bodies=bodies, interfaces=interfaces,
         load_face="pressure_plate_back", axial_force=case.load.axial_force, ring_radius=ring,
         support_axial_face="counter_plate_back", support_radial_face="counter_plate_bore",
-        semi_cone_angle=90.0, refine_points=refine)
+        semi_cone_angle=90.0, refine_points=refine, lining_end_shape=lin.end_shape)
     check_section(section)
     return section

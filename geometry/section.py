@@ -84,7 +84,9 @@ class Section:
     face_size: float = 1.0        # mm along the friction faces (mid-face)
     edge_size: float = 0.25       # mm at the lining ends
     body_size: float = 4.0        # mm, largest in the bodies
+    refinement: float = 1.0       # thin parts get about 2 × refinement elements through their thickness
     element_order: int = 2
+    lining_end_shape: str = "normal_to_axis"   # lining.end_shape, for the section picture
 
     def region_area_and_moment(self, region: Region) -> tuple[float, float]:
         """Exact area (mm²) and first moment about the axis ∫ r dA (mm³) of a polygon region."""

@@ -11,6 +11,12 @@ from tests.helpers.data import CONE, PLATE
 # for a run): pictures through VTK's off-screen EGL window, no X server needed
 os.environ.setdefault("VTK_DEFAULT_OPENGL_WINDOW", "vtkEGLRenderWindow")
 
+# no test reads or writes the user's cache of the verification table: one scratch folder per session
+# (tests that need a stored table make it there themselves)
+if "CLUTCHFE_CACHE_DIR" not in os.environ:
+    import tempfile
+    os.environ["CLUTCHFE_CACHE_DIR"] = tempfile.mkdtemp(prefix="clutchfe-test-cache-")
+
 # CI explores the same examples every run (same input, same output); local runs keep exploring
 settings.register_profile("ci", derandomize=True, deadline=None)
 if os.environ.get("CI"):

@@ -181,10 +181,12 @@ def test_ring_load_puts_a_vertex_at_the_ring_radius():
 
 
 @settings(max_examples=12, deadline=None)
-@given(r1=st.floats(20, 150), width=st.floats(5, 60), angle=st.floats(6, 60), t=st.floats(0.5, 4))
-def test_random_valid_cones_mesh_with_matching_faces(r1, width, angle, t):
+@given(r1=st.floats(20, 150), width=st.floats(5, 60), angle=st.floats(6, 60), t=st.floats(0.5, 4),
+       ends=st.sampled_from(("normal_to_axis", "normal_to_face", "chamfer")), on=st.sampled_from(("cone", "cup")))
+def test_random_valid_cones_mesh_with_matching_faces(r1, width, angle, t, ends, on):
     data = {**CONE, "interface": {**CONE["interface"], "inner_radius": r1, "outer_radius": r1 + width,
-                                  "semi_cone_angle": angle}, "lining": {"thickness": t}}
+                                  "semi_cone_angle": angle},
+            "lining": {"thickness": t, "end_shape": ends, "bonded_to": on}}
     try:
         case = case_from_dict(data)
         section = section_of(case)

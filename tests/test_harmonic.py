@@ -69,7 +69,7 @@ def test_circulant_compliance_matches_the_dense_kernel():
 
 def test_winkler_lining_under_small_tilt():
     """Thin lining on numerically rigid steel: p = k (δ0 + φ r cos θ), k = E / t for ν = 0
-    (elastic-foundation model, Johnson, Contact Mechanics 1985, §9.2 'elastic foundation').
+    (elastic-foundation model, Johnson, Contact Mechanics 1985, §5.8).
     The tilting moment is then k φ ∫ r² cos²θ dA = k φ π (r2⁴ − r1⁴) / 4."""
     solver = TiltedContactSolver(lined_blocks(), "top", grid=16)
     k = E_LINING / T_LINING

@@ -49,7 +49,7 @@ def test_pressure_plot_is_written_with_units_and_hand_curves(tmp_path):
     assert f"R_eff = {out['effective_radius_mm']:.2f} mm" in title
 
     # Same-W hand curves (normal pressure on the slant): uniform W / (pi (r2^2 - r1^2)),
-    # uniform wear W / (2 pi r (r2 - r1)); both give int p 2 pi r dr = W (design.md §5).
+    # uniform wear W / (2 pi r (r2 - r1)); both give int p 2 pi r dr = W (Shigley's clutch chapter; docs/physics.md).
     r_up, p_up = _line(ax, "uniform pressure").get_data()
     assert np.allclose(p_up, 2500.0 / (math.pi * (75.0**2 - 60.0**2)), rtol=1e-12)
     r_uw, p_uw = _line(ax, "uniform wear").get_data()

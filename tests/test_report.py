@@ -16,6 +16,8 @@ from rich.console import Console
 from clutchfe import plan
 from clutchfe.errors import CaseError
 from clutchfe.case import case_from_dict, load_case
+from clutchfe.verification import run_verification
+from clutchfe.verification.store import CACHE_ENV
 
 from tests.helpers.data import CASES, CONE
 
@@ -36,9 +38,24 @@ def _run(case, folder: Path, monkeypatch) -> dict:
 
 
 @pytest.fixture(scope="module")
-def cone_report(tmp_path_factory):
+def verification_cache(tmp_path_factory):
+    """A scratch cache folder (never the user's) holding the table `clutchfe verify` stores: the real
+    suite, run once here, so the report embeds the table as a run on an installation that ran verify."""
+    folder = tmp_path_factory.mktemp("cache")
     mp = pytest.MonkeyPatch()
     try:
+        mp.setenv(CACHE_ENV, str(folder))
+        run_verification(store=True)
+    finally:
+        mp.undo()
+    return folder
+
+
+@pytest.fixture(scope="module")
+def cone_report(tmp_path_factory, verification_cache):
+    mp = pytest.MonkeyPatch()
+    try:
+        mp.setenv(CACHE_ENV, str(verification_cache))
         folder = tmp_path_factory.mktemp("cone") / "cone_capstan"
         case = load_case([p for p in CASES if p.stem == "cone_capstan"][0])
         summary = _run(case, folder, mp)
@@ -122,7 +139,8 @@ def test_report_renders_without_errors_and_every_picture_loads(cone_report, brow
     browser.set_window_size(1280, browser.execute_script("return document.body.scrollHeight") + 100)
     assert browser.save_screenshot(str(shot)) and shot.stat().st_size > 50_000
     text = browser.find_element("tag name", "body").text
-    for words in ("Caution", "licensed engineer", "Verification of the solver", "mesh convergence",
+    for words in ("Caution", "licensed engineer", "Verification of the solver", "stored it on this installation",
+                  "mesh convergence",
                   "Assumptions and limits", summary["input_sha256"], "Capacity margins"):
         assert words in text, words
 
@@ -136,8 +154,9 @@ def test_numbers_on_the_page_equal_summary_json(cone_report, browser):
     assert len(shown) > 60
     keys = {key for key, *_ in shown}
     for must in ("torque_fe_Nm", "torque_uniform_pressure_Nm", "torque_uniform_wear_Nm", "capacity_position",
-                 "effective_radius_mm", "peak_pressure_MPa", "capacity_margin_fe", "peak_pressure_over_allowable",
-                 "mesh_study.quantities.torque_fe_Nm.gci_fine", "mesh_study.quantities.capacity_position.band_fine"):
+                 "effective_radius_mm", "peak_pressure_MPa", "capacity_margin_fe", "design_peak_pressure_MPa",
+                 "design_peak_over_allowable", "mesh_study.quantities.torque_fe_Nm.band_coarse",
+                 "mesh_study.quantities.capacity_position.band_fine"):
         assert must in keys, must
     for key, value, scale, text in shown:
         expected = _lookup(summary, key)
@@ -145,7 +164,7 @@ def test_numbers_on_the_page_equal_summary_json(cone_report, browser):
         decimals = len(text.split(".")[1]) if "." in text else 0
         assert abs(float(text) - expected * float(scale)) <= 0.5001 * 10 ** -decimals, (key, text, expected)
     missing = browser.execute_script("return Array.from(document.querySelectorAll('.num-missing')).map(e => e.dataset.key)")
-    assert "mesh_study.quantities.torque_fe_Nm.gci_fine" not in missing
+    assert "mesh_study.quantities.torque_fe_Nm.band_coarse" not in missing
 
 
 def test_report_is_self_contained(cone_report):
@@ -162,18 +181,22 @@ def test_mesh_study_of_the_cone_demo(cone_report):
     _, summary = cone_report
     study = summary["mesh_study"]
     meshes = study["meshes"]
-    assert [m["name"] for m in meshes] == ["fine (this run)", "medium", "coarse"]
-    assert meshes[0]["torque_fe_Nm"] == summary["torque_fe_Nm"]          # this run is the fine mesh
-    assert meshes[0]["triangles"] > meshes[1]["triangles"] > meshes[2]["triangles"]
-    # the measured face-spacing ratios follow the requested ratio (node counts are integers)
-    for measured in (study["refinement_ratio_21"], study["refinement_ratio_32"]):
-        assert measured == pytest.approx(study["refinement_ratio_nominal"], rel=0.05)
+    assert [m["name"] for m in meshes] == ["this run", "refined ×1.5", "refined ×2.25"]
+    assert meshes[0]["torque_fe_Nm"] == summary["torque_fe_Nm"]          # this run is the coarsest mesh
+    assert meshes[0]["triangles"] < meshes[1]["triangles"] < meshes[2]["triangles"]
+    # geometrically similar meshes: the face-spacing and element-count ratios both follow the requested ratio
+    for measured in ("refinement_ratio_21", "refinement_ratio_32", "element_count_ratio_21", "element_count_ratio_32"):
+        assert study[measured] == pytest.approx(study["refinement_ratio_nominal"], rel=0.05), measured
+    assert study["geometrically_similar"] is True
     torque = study["quantities"]["torque_fe_Nm"]
-    assert torque["gci_fine"] is not None and torque["gci_fine"] < 0.01
-    # R_eff is T sin(alpha)/(n mu W): the same relative index as the torque
-    assert study["quantities"]["effective_radius_mm"]["gci_fine"] == pytest.approx(torque["gci_fine"], rel=1e-6)
-    assert study["converged"] is True and "need not converge" in study["peak_pressure_note"]
+    assert torque["band_coarse"] is not None and torque["band_coarse"] < 0.01 * summary["torque_fe_Nm"]
+    # R_eff is T sin(alpha)/(n mu W): the same relative band as the torque
+    reff = study["quantities"]["effective_radius_mm"]
+    assert reff["band_coarse"] / summary["effective_radius_mm"] == pytest.approx(
+        torque["band_coarse"] / summary["torque_fe_Nm"], rel=1e-6)
+    assert study["converged"] is True and "does not converge" in study["peak_pressure_note"]
     assert summary["verification"]["all_passed"] is True and summary["verification"]["checks"] >= 15
+    assert summary["verification"]["state"] == "stored"        # the table verify stored, not a suite run here
 
 
 def test_pdf_when_weasyprint_is_there(cone_report):
@@ -192,13 +215,14 @@ HOSTILE_TEXT = "<script>document.title='owned'</script> bore < 40 mm & > 20 mm"
 
 
 @pytest.fixture(scope="module")
-def hostile_report(tmp_path_factory):
+def hostile_report(tmp_path_factory, verification_cache):
     """The report of a case whose name and description are HTML, mesh study switched off."""
     data = copy.deepcopy(CONE)
     data.update(description=HOSTILE_TEXT, verification={"mesh_study": False})
     case = dataclasses.replace(case_from_dict(data), name=HOSTILE_NAME)
     mp = pytest.MonkeyPatch()
     try:
+        mp.setenv(CACHE_ENV, str(verification_cache))
         folder = tmp_path_factory.mktemp("hostile") / "hostile"
         summary = _run(case, folder, mp)
     finally:

@@ -186,7 +186,7 @@ def test_sweep_reproduces_torque_proportional_to_mu_and_force(tmp_path):
     rows = _csv(out / "samples.csv")
     assert len(rows) == 9 and summary["samples_done"] == 9 and summary["complete"]
     # zero initial gap: unilateral contact is positively homogeneous in the load (linear
-    # elasticity), and mu only multiplies the normal pressure (design.md §5): T / (mu W) is constant
+    # elasticity), and mu only multiplies the normal pressure (Shigley's clutch chapter; docs/physics.md): T / (mu W) is constant
     per = [float(r["torque_fe_Nm"]) / (float(r["interface.friction_coefficient"]) * float(r["load.axial_force_N"]))
            for r in rows]
     assert max(per) - min(per) <= 1e-10 * max(per)
@@ -427,7 +427,7 @@ def test_study_command_runs_and_rejects_bad_files(tmp_path, capsys):
     assert summary["samples_done"] == 2 and summary["samples_failed"] == 0
     rows = _csv(out / "samples.csv")
     torques = sorted(float(r["torque_fe_Nm"]) for r in rows)
-    assert torques[1] == pytest.approx(2 * torques[0], rel=1e-9)       # T linear in mu (design.md §5)
+    assert torques[1] == pytest.approx(2 * torques[0], rel=1e-9)       # T linear in mu (Shigley; docs/physics.md)
     bad = _study(tmp_path, CONE, {"vary": [{"key": "interface.friction_coefficent", "values": [0.2]}]}, name="bad")
     assert main(["study", str(bad), "--out", str(tmp_path / "bad")]) == 2
     err = capsys.readouterr().err

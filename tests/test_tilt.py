@@ -190,3 +190,123 @@ def test_warm_start_from_the_previous_tilt_gives_the_same_contact(plate_pair):
     assert np.array_equal(a.in_contact, b.in_contact) and not a.in_contact.all()
     assert np.abs(a.normal_force - b.normal_force).max() < 1e-8 * np.abs(a.normal_force).max()
     assert warm.axial_force_balance_error < 1e-9 and cold.axial_force_balance_error < 1e-9
+
+
+# --- the tilt pivot and the guide ring (misalignment.tilt_pivot_offset, misalignment.guided_at) ---
+
+def _coarse_tilted_cone(**misalignment):
+    """The test cone, P1 and coarse, tilted 0.03° on 16 angles: a tilt solve in a few ms."""
+    data = copy.deepcopy(CONE)
+    data["mesh"] = {"element_order": 1, "interface_element_size": 2.5, "edge_element_size": 1.25,
+                    "element_size": 7.5, "lining_layers": 1, "angular_divisions": 16}
+    data["misalignment"] = {"axis_tilt": 0.03, **misalignment}
+    return case_from_dict(data)
+
+
+def _tilt_of(service, **misalignment):
+    from clutchfe.analyses.tilt import tilt_result
+    return tilt_result(service.solve(_coarse_tilted_cone(**misalignment), fields=False))
+
+
+def test_default_pivot_and_guide_reproduce_the_earlier_solve():
+    # regression: measured at HEAD 3cd0944, before the pivot and guide became keys (the pivot was
+    # always the middle of the friction face, the guide ring the load face's); the defaults must
+    # give the same solve to round-off, whether the keys are left out or given as their defaults
+    from clutchfe.solve import SolveService
+
+    service = SolveService()
+    for keys in ({}, {"tilt_pivot_offset": 0.0, "guided_at": "load_ring"}):
+        t = _tilt_of(service, **keys)
+        assert t.peak_pressure_MPa == pytest.approx(1.7266342976974596, rel=1e-9)
+        assert t.tilt_moment_Nm == pytest.approx(80.16667763744348, rel=1e-9)
+        assert 1 - t.contact_area_fraction == pytest.approx(0.11380142910944369, rel=1e-9)
+        assert (t.tilt_pivot_offset_mm, t.guided_at) == (0.0, "load_ring")
+        solver = next(iter(service.prepare(_coarse_tilted_cone()).tilted_solvers.values()))
+        assert t.tilt_pivot_z_mm == solver.pivot_z        # the middle of the friction face
+    assert service.preparations == 1
+
+
+def test_tilt_about_another_pivot_is_the_tilt_plus_a_radial_shift():
+    # small-rotation kinematics, common practice: a rotation φ about (0, 0, z0) moves every point
+    # as the rotation about (0, 0, z1) plus the rigid shift φ (z1 − z0) across the axis; so the two
+    # solves are one contact problem (to solver tolerance), and statics moves the moment:
+    # M(z0) = M(z1) + (z1 − z0) F, with F the contact's force across the axis
+    from clutchfe.solve import SolveService
+
+    case = _coarse_tilted_cone()
+    service = SolveService()
+    solved = service.solve(case, fields=False)
+    solver = solved.prepared.tilted(16)
+    gaps, scale = list(solved.gaps), solved.load_scale
+    phi = math.radians(0.03)
+    z0, z1 = solver.pivot_z - 20.0, solver.pivot_z + 15.0
+    a = solver.solve(0.03, 0.0, load_scale=scale, gaps=gaps, pivot_z=z0)
+    b = solver.solve(0.03, phi * (z1 - z0), load_scale=scale, gaps=gaps, pivot_z=z1)
+    c = solver.solve(0.03, 0.0, load_scale=scale, gaps=gaps, pivot_z=z1)
+    fa, fb = a.interfaces[0].normal_force, b.interfaces[0].normal_force
+    assert np.abs(fa - fb).max() < 1e-9 * np.abs(fa).max()
+    assert np.abs(fa - c.interfaces[0].normal_force).max() > 0.05 * np.abs(fa).max()   # the pivot matters
+    assert a.radial_force[0] == pytest.approx(b.radial_force[0], rel=1e-9)
+    assert a.moment[0] == pytest.approx(b.moment[0] + (z1 - z0) * b.radial_force[0], rel=1e-9)
+    assert (a.pivot_z, b.pivot_z) == (z0, z1)
+    # rigid-body statics: free to swivel about any pivot, the part carries no moment about it
+    free = solver.solve(0.03, 0.0, self_aligning=True, load_scale=scale, gaps=gaps, pivot_z=z0)
+    assert abs(free.moment[0]) < 1e-9 * abs(a.moment[0])
+
+
+def test_moving_the_pivot_towards_the_back_face_raises_peak_and_moment():
+    # small-rotation kinematics, common practice: moving the pivot by Δ towards the back face adds
+    # the rigid shift −φΔ across the axis, a gap change φ Δ cos α cos θ uniform over the cone face:
+    # it closes the face at θ = 180°, where this cone's peak is (inner edge), so the peak grows with
+    # Δ while it stays there; the guidance carries that shift (radial force F grows with it), and
+    # the moment about the pivot grows with both the arm Δ and F (statics: M(Δ) ≈ M(0) + Δ F)
+    from clutchfe.solve import SolveService
+
+    service = SolveService()
+    runs = [_tilt_of(service, tilt_pivot_offset=d) for d in (0.0, 5.0, 10.0, 15.0)]
+    # measured: peak 1.727 / 1.853 / 1.978 / 2.103 MPa, moment 80.2 / 84.8 / 91.2 / 99.4 N·m,
+    # radial force 541 / 753 / 960 / 1161 N
+    assert all(t.peak_pressure_theta_deg == 180.0 for t in runs)
+    for key in ("peak_pressure_MPa", "tilt_moment_Nm", "guidance_radial_force_N"):
+        values = [getattr(t, key) for t in runs]
+        assert all(b > a for a, b in zip(values, values[1:])), (key, values)
+    assert [t.tilt_pivot_z_mm - runs[0].tilt_pivot_z_mm for t in runs] == pytest.approx([0.0, 5.0, 10.0, 15.0])
+    assert service.preparations == 1 and len(service.prepare(_coarse_tilted_cone()).tilted_solvers) == 1
+
+
+def test_guiding_at_the_bore_is_its_own_condensation():
+    # the guide ring is part of the harmonic condensation: a case guided at the bore must not reuse
+    # the load-ring solver of its stiffness group (the cache keys on it), and the ring is on the bore
+    from clutchfe.solve import SolveService
+
+    service = SolveService()
+    ring = _tilt_of(service)
+    bore = _tilt_of(service, guided_at="bore")
+    alone = _tilt_of(SolveService(), guided_at="bore")
+    assert bore.guided_at == "bore"
+    assert bore.peak_pressure_MPa == alone.peak_pressure_MPa
+    assert abs(bore.peak_pressure_MPa / ring.peak_pressure_MPa - 1) > 0.05     # measured 1.244 vs 1.727
+    prepared = service.prepare(_coarse_tilted_cone())
+    assert service.preparations == 1 and set(prepared.tilted_solvers) == {(16, "load_ring"), (16, "bore")}
+    solver = prepared.tilted(16, "bore")
+    r, z = solver.hs.basis.mesh.p[:, solver.guide[solver.pressed]]
+    case = _coarse_tilted_cone()
+    assert r == pytest.approx(case.cone.bore_radius)
+
+
+@pytest.mark.parametrize("key,value,expect", [
+    ("tilt_pivot_offset", 151.0, "-150 ≤ value ≤ 150 mm"),          # CONE: outer radius 75 mm
+    ("tilt_pivot_offset", -400.0, "-150 ≤ value ≤ 150 mm"),
+    ("tilt_pivot_offset", "low", "misalignment.tilt_pivot_offset"),
+    ("guided_at", "shaft", "load_ring"),
+])
+def test_bad_pivot_or_guide_exits_2_naming_the_key(tmp_path, capsys, key, value, expect):
+    from clutchfe._cli import main
+    from tests.helpers.data import write_toml
+
+    data = copy.deepcopy(CONE)
+    data["misalignment"] = {"axis_tilt": 0.03, key: value}
+    code = main(["check", str(write_toml(tmp_path / "case.toml", data))])
+    err = capsys.readouterr().err
+    assert code == 2, err
+    assert f"misalignment.{key}" in err and expect in err and "Traceback" not in err

@@ -1,27 +1,42 @@
 """The verification suite behind `clutchfe verify`: every case passes, every row names its source,
-and a wrong or broken case fails the suite instead of passing or crashing it."""
+a wrong or broken case fails the suite instead of passing or crashing it, and `clutchfe verify`
+stores the table that runs read (in a scratch cache folder: CLUTCHFE_CACHE_DIR, never the user's)."""
 import io
 import json
 
 import pytest
 from rich.console import Console
 
-from clutchfe.verification import CASES, Check, VerificationCase, print_verification, run_verification
+from clutchfe.provenance import versions
+from clutchfe.verification import CASES, Check, VerificationCase, load_table, print_verification, run_verification
+from clutchfe.verification import store as vstore
 from clutchfe.verification import table as vtable
 from clutchfe.verification.checks import relative
-from clutchfe.verification.mesh_study import coarser_case
+from clutchfe.verification.mesh_study import refined_case
 
 
 @pytest.fixture(scope="module")
 def suite(tmp_path_factory):
     out = tmp_path_factory.mktemp("verify")
-    rows, passed = run_verification(out_dir=out)
-    return rows, passed, out
+    mp = pytest.MonkeyPatch()
+    mp.setenv(vstore.CACHE_ENV, str(tmp_path_factory.mktemp("cache")))
+    try:
+        rows, passed = run_verification(out_dir=out)
+        stored = load_table()
+    finally:
+        mp.undo()
+    return rows, passed, out, stored
+
+
+@pytest.fixture
+def cache(monkeypatch, tmp_path):
+    monkeypatch.setenv(vstore.CACHE_ENV, str(tmp_path / "cache"))
+    return tmp_path / "cache"
 
 
 @pytest.mark.slow
 def test_every_case_passes_with_a_named_source(suite):
-    rows, passed, _ = suite
+    rows, passed, *_ = suite
     failed = [(r.case, r.quantity, r.error, r.tolerance) for r in rows if not r.passed]
     assert passed and not failed, failed
     covered = {r.case for r in rows}
@@ -35,7 +50,7 @@ def test_every_case_passes_with_a_named_source(suite):
 
 @pytest.mark.slow
 def test_table_files_match_the_rows(suite):
-    rows, passed, out = suite
+    rows, passed, out, _ = suite
     data = json.loads((out / "verification.json").read_text())
     assert data["all_passed"] is passed and len(data["rows"]) == len(rows)
     assert data["rows"][0]["computed"] == rows[0].computed
@@ -45,7 +60,7 @@ def test_table_files_match_the_rows(suite):
 
 @pytest.mark.slow
 def test_printer_shows_every_row_and_the_count(suite):
-    rows, passed, _ = suite
+    rows, passed, *_ = suite
     buf = io.StringIO()
     print_verification(rows, passed, Console(file=buf, width=250))
     text = buf.getvalue()
@@ -62,7 +77,20 @@ def _broken_case():
     raise RuntimeError("mesh file missing")
 
 
-def test_a_wrong_or_broken_case_fails_the_suite(monkeypatch, tmp_path):
+@pytest.mark.slow
+def test_verify_stores_the_table_a_run_reads(suite):
+    rows, passed, _, (stored, stored_passed) = suite
+    assert rows.stored_at is not None and stored.origin.state == "stored" and stored_passed is passed
+    assert stored == list(rows)                                   # the same rows, read back from JSON
+    assert stored.origin.code_hash == vstore.code_hash() and stored.origin.made
+    data = json.loads(rows.stored_at.read_text(encoding="utf-8"))
+    assert data["versions"] == versions() and data["command"] == "clutchfe verify"
+    buf = io.StringIO()
+    print_verification(rows, passed, Console(file=buf, width=250))
+    assert str(rows.stored_at) in buf.getvalue().replace("\n", "")
+
+
+def test_a_wrong_or_broken_case_fails_the_suite(monkeypatch, tmp_path, cache):
     monkeypatch.setattr(vtable, "CASES", [VerificationCase("wrong", _wrong_reference),
                                           VerificationCase("broken", _broken_case)])
     rows, passed = run_verification(out_dir=tmp_path)
@@ -74,6 +102,8 @@ def test_a_wrong_or_broken_case_fails_the_suite(monkeypatch, tmp_path):
     print_verification(rows, passed, Console(file=buf, width=250))
     assert "FAIL" in buf.getvalue() and "0 passed, 2 failed" in buf.getvalue()
     assert not Check("c", "q [-]", 1.0, 1.0, float("nan"), "relative", 1.0, "s").passed
+    # a test's stand-in registry is never stored for runs
+    assert rows.stored_at is None and not (cache / vstore.FILE_NAME).exists()
 
 
 def test_one_registry_entry_adds_a_case():
@@ -82,14 +112,18 @@ def test_one_registry_entry_adds_a_case():
     assert len({c.title for c in CASES}) == len(CASES)
 
 
-def test_coarser_meshes_scale_every_size():
+def test_refined_meshes_scale_every_size_and_count():
     from clutchfe.case import case_from_dict
+    from clutchfe.geometry import build_section
 
     from tests.helpers.data import CONE
 
     case = case_from_dict(CONE)
-    coarse = coarser_case(case, 1.5 ** 2)
-    for key in ("interface_element_size", "edge_element_size", "element_size"):
-        assert getattr(coarse.mesh, key) == pytest.approx(2.25 * getattr(case.mesh, key))
-    assert coarse.mesh.lining_layers == max(1, round(case.mesh.lining_layers / 2.25))
-    assert coarse.interface == case.interface and coarse.input_sha256 == case.input_sha256
+    fine = refined_case(case, 1.5 ** 2)
+    base, refined = build_section(case), build_section(fine)
+    for key in ("face_size", "edge_size", "body_size"):
+        assert getattr(refined, key) == pytest.approx(getattr(base, key) / 2.25, rel=1e-12)
+    assert refined.refinement == pytest.approx(2.25 * base.refinement)
+    layers = [(a.lining_layers, b.lining_layers) for a, b in zip(base.regions, refined.regions) if a.lining_layers]
+    assert layers and all(b == round(2.25 * a) for a, b in layers)
+    assert fine.interface == case.interface and fine.input_sha256 == case.input_sha256

@@ -14,6 +14,7 @@ from dataclasses import dataclass, fields
 
 import numpy as np
 
+from .design_peak import band_width_mm, design_peak
 from .hand import HandCapacity, as_hand_capacity, finite, radius_gap_mm, require
 
 # A nodal force this far below zero (relative to the surface's total) is solver round-off,
@@ -26,6 +27,9 @@ _RADIUS_ROUNDOFF = 1e-9
 _MATCH = 5e-5
 # Above this capacity-position uncertainty from the axial balance error, the verdict says so.
 _POSITION_UNCERTAINTY_WARN = 0.05
+# Below this share of the face in contact, contact is reported as partial (a chosen tolerance:
+# a few nodes at a lining end opening by round-off must not trigger it).
+_FULL_CONTACT = 0.995
 
 
 # ---------------------------------------------------------------- FE surface data
@@ -191,20 +195,25 @@ def _warnings(xi: float, xi_uncertainty: float, balance: float, torque_fe_Nm: fl
     return warnings
 
 
-def _surface_summary(s: dict, hand: HandCapacity, faces: int, totals: tuple[float, float]) -> dict:
+def _surface_summary(s: dict, hand: HandCapacity, faces: int, total_torque: float) -> dict:
+    """One modelled friction face.  The faces of a clutch act in series along the axis (each
+    carries the whole clamp force W) and in parallel for the torque (the torques add): so the
+    axial force is given over W, the torque as a share of the total."""
     axial = float(np.sum(s["f"])) * hand.sin_alpha
     torque = faces * hand.friction_coefficient * float(np.sum(s["f"] * s["r"])) / 1000.0
-    total_axial, total_torque = totals
+    peak, peak_r = design_peak(s["r"], s["p"], hand.inner_radius_mm, hand.outer_radius_mm, hand.semi_cone_angle_deg)
     return {
         "name": s["name"],
         "axial_force_N": axial,
-        "axial_force_share": axial / total_axial,
+        "axial_force_over_clamp_force": axial / hand.axial_force_N,
         "axial_force_balance_error": axial / hand.axial_force_N - 1.0,
         "torque_Nm": torque,
         "torque_share": torque / total_torque,
         # Force-weighted radius: in [r1, r2] whatever the balance error.
         "effective_radius_mm": float(np.sum(s["f"] * s["r"]) / np.sum(s["f"])),
         "peak_pressure_MPa": float(np.max(s["p"])),
+        "design_peak_pressure_MPa": peak,
+        "design_peak_radius_mm": peak_r,
         "contact_area_fraction": float(np.sum(s["area"][s["contact"]]) / np.sum(s["area"])),
     }
 
@@ -232,6 +241,10 @@ class Comparison(Mapping):
     peak_pressure_radius_mm: float
     peak_pressure_surface: str
     peak_pressure_over_uniform_wear_peak: float
+    design_peak_pressure_MPa: float
+    design_peak_radius_mm: float
+    design_peak_surface: str
+    design_peak_band_mm: float
     mean_pressure_MPa: float
     contact_area_fraction: float
     axial_force_balance_error: float
@@ -244,6 +257,9 @@ class Comparison(Mapping):
     capacity_margin_fe: float | None = None
     capacity_margin_uniform_pressure: float | None = None
     capacity_margin_uniform_wear: float | None = None
+    allowable_pressure_MPa: float | None = None
+    design_peak_over_allowable: float | None = None
+    failed_criteria: tuple = ()     # names of the criteria the design fails (said in the verdict too)
 
     def _keys(self) -> list[str]:
         own = [f.name for f in fields(self) if f.name != "hand"]
@@ -266,16 +282,19 @@ class Comparison(Mapping):
         """Every output key as a plain dict (lists for the per-surface and warning tuples)."""
         out = dict(self.items())
         out["surfaces"], out["warnings"] = list(self.surfaces), list(self.warnings)
+        out["failed_criteria"] = list(self.failed_criteria)
         return out
 
 
 def compare(surfaces, hand, required_torque_Nm=None, service_factor=1.0, peak=None,
-            contact_area_fraction=None) -> Comparison:
+            contact_area_fraction=None, allowable_pressure_MPa=None, design=None) -> Comparison:
     """Torque capacity from the FE contact forces against the two hand methods.
 
-    ``peak`` = (pressure MPa, radius mm, surface name) and ``contact_area_fraction`` replace
-    the values read from ``surfaces`` when the solve has a finer picture of them than the
-    surfaces carry (the (r, θ) grid of a tilted solve, whose surfaces are θ-summed rings).
+    ``peak`` = (pressure MPa, radius mm, surface name), ``design`` = the same for the design
+    peak (band mean, see design_peak.py) and ``contact_area_fraction`` replace the values
+    read from ``surfaces`` when the solve has a finer picture of them than the surfaces carry
+    (the (r, θ) grid of a tilted solve, whose surfaces are θ-summed rings).
+    ``allowable_pressure_MPa``: the lining's allowable, judged on the design peak.
     """
     hand = as_hand_capacity(hand)
     require(len(surfaces) > 0, "no FE surfaces given")
@@ -283,8 +302,7 @@ def compare(surfaces, hand, required_torque_Nm=None, service_factor=1.0, peak=No
     faces = faces_per_modelled_surface(len(data), hand.friction_surfaces)
 
     total_torque = faces * hand.friction_coefficient * sum(float(np.sum(s["f"] * s["r"])) for s in data) / 1000.0
-    total_axial = sum(float(np.sum(s["f"])) for s in data) * hand.sin_alpha
-    per_surface = [_surface_summary(s, hand, faces, (total_axial, total_torque)) for s in data]
+    per_surface = [_surface_summary(s, hand, faces, total_torque) for s in data]
     balance = max((ps["axial_force_balance_error"] for ps in per_surface), key=abs)
 
     xi = capacity_position(total_torque, hand)
@@ -299,16 +317,40 @@ def compare(surfaces, hand, required_torque_Nm=None, service_factor=1.0, peak=No
     if contact_area_fraction is None:
         area_total = sum(float(np.sum(s["area"])) for s in data)
         contact_area_fraction = sum(float(np.sum(s["area"][s["contact"]])) for s in data) / area_total
+    if design is None:
+        worst = max(per_surface, key=lambda x: x["design_peak_pressure_MPa"])
+        design = (worst["design_peak_pressure_MPa"], worst["design_peak_radius_mm"], worst["name"])
 
     sentences = [_assumption_sentence(xi, total_torque, hand), _radius_sentence(r_eff, hand)]
     warnings = _warnings(xi, xi_uncertainty, balance, total_torque, hand, sentences[0])
+    failed = []
     margins = {}
     if required_torque_Nm is not None:
         margins = _capacity_margins(total_torque, hand, required_torque_Nm, service_factor)
         sentences.append(_margin_sentence(margins))
         if margins["capacity_margin_fe"] < 0.0:
+            failed.append("required torque")
             warnings.append("WARNING: BY THE FE PRESSURE THE CLUTCH SLIPS: its capacity is below the required "
                             "torque times the service factor.")
+    band = band_width_mm(hand.inner_radius_mm, hand.outer_radius_mm, hand.semi_cone_angle_deg)
+    allowable = {}
+    if allowable_pressure_MPa is not None:
+        ratio = design[0] / allowable_pressure_MPa
+        allowable = {"allowable_pressure_MPa": float(allowable_pressure_MPa), "design_peak_over_allowable": ratio}
+        if ratio > 1.0:
+            failed.append("allowable pressure")
+            warnings.append(f"WARNING: THE LINING'S ALLOWABLE PRESSURE IS EXCEEDED: the design peak pressure "
+                            f"{design[0]:.4g} MPa (mean over the worst {band:.3g} mm band along the face, at "
+                            f"r = {design[1]:.2f} mm) is {_pct(ratio - 1.0)} above the allowable "
+                            f"{allowable_pressure_MPa:.4g} MPa.")
+        elif peak[0] > allowable_pressure_MPa:
+            sentences.append(f"The nodal peak {peak[0]:.4g} MPa at r = {peak[1]:.2f} mm is above the allowable "
+                             f"{allowable_pressure_MPa:.4g} MPa, but it is an edge concentration that grows with mesh "
+                             f"refinement; the design peak ({design[0]:.4g} MPa over a {band:.3g} mm band) is within.")
+    if contact_area_fraction < _FULL_CONTACT:
+        failed.append("partial contact")
+        warnings.append(f"WARNING: CONTACT IS PARTIAL: {_pct(1.0 - contact_area_fraction)} of the friction face "
+                        "is open, while both hand formulas assume the whole face carries load.")
     return Comparison(
         hand=hand, torque_fe_Nm=total_torque, capacity_position=xi, capacity_position_uncertainty=xi_uncertainty,
         effective_radius_mm=r_eff, effective_radius_position=position_on_annulus(r_eff, hand),
@@ -318,8 +360,10 @@ def compare(surfaces, hand, required_torque_Nm=None, service_factor=1.0, peak=No
         torque_fe_over_uniform_pressure=total_torque / hand.torque_uniform_pressure_Nm - 1.0,
         peak_pressure_MPa=peak[0], peak_pressure_radius_mm=peak[1], peak_pressure_surface=peak[2],
         peak_pressure_over_uniform_wear_peak=peak[0] / hand.peak_pressure_uniform_wear_MPa,
+        design_peak_pressure_MPa=design[0], design_peak_radius_mm=design[1], design_peak_surface=design[2],
+        design_peak_band_mm=band,
         mean_pressure_MPa=hand.uniform_pressure_MPa, contact_area_fraction=contact_area_fraction,
         axial_force_balance_error=balance, faces_per_modelled_surface=faces, surfaces=tuple(per_surface),
         # xi < 0 is said once
         verdict=" ".join(sentences + [w for w in warnings if w not in sentences]), warnings=tuple(warnings),
-        **margins)
+        failed_criteria=tuple(failed), **margins, **allowable)

@@ -25,8 +25,10 @@ def write_all(folder: Path, case, section, mesh, fe, result, axisymmetric: bool 
     write_mesh(mesh, folder / "mesh.vtu")
     section_picture(section, mesh, folder / "section.png",
                     title=f"{case.name}: {len(mesh.triangles)} triangles, {len(mesh.points)} nodes")
+    # a tilted solve's rings are θ-summed: the picture says it shows the average around the axis
+    title = case.name if axisymmetric else f"{case.name}, averaged around the axis (see pressure_polar.png)"
     pressure_plot(folder / "pressure.png", fe.interfaces, result, result["capacity_position"],
-                  result["effective_radius_mm"], case.name)
+                  result["effective_radius_mm"], title)
     effective_radius_bar(folder / "effective_radius.png", case.interface.inner_radius,
                          case.interface.outer_radius, result["radius_uniform_pressure_mm"],
                          result["radius_uniform_wear_mm"], result["effective_radius_mm"])
@@ -101,6 +103,18 @@ def deformed_picture(path: Path, mesh, fe, title: str) -> None:
     plotter.close()
 
 
+def surface_table(surfaces: list[dict]) -> Table:
+    """Load and torque per friction surface: in series for the clamp force, in parallel for the torque."""
+    table = Table(title="per friction surface (each carries the clamp force W; the torques add)")
+    for col in ("surface", "axial force / W", "torque [N·m]", "torque share [%]", "R_eff [mm]", "design peak [MPa]"):
+        table.add_column(escape(col), justify="left" if col == "surface" else "right")
+    for x in surfaces:
+        table.add_row(escape(x["name"]), f"{x['axial_force_over_clamp_force']:.4f}", f"{x['torque_Nm']:.3f}",
+                      f"{100 * x['torque_share']:.2f}", f"{x['effective_radius_mm']:.3f}",
+                      f"{x['design_peak_pressure_MPa']:.4f}")
+    return table
+
+
 def print_table(console, case, summary: dict, folder: Path, extra_tables=()) -> None:
     table = Table(title=f"{case.name}: torque capacity (FE contact vs hand formulas)")
     table.add_column("quantity", no_wrap=True)
@@ -111,13 +125,17 @@ def print_table(console, case, summary: dict, folder: Path, extra_tables=()) -> 
                   f"{summary['torque_uniform_wear_Nm']:.2f}")
     table.add_row(escape("effective radius [mm]"), f"{summary['effective_radius_mm']:.3f}",
                   f"{summary['radius_uniform_pressure_mm']:.3f}", f"{summary['radius_uniform_wear_mm']:.3f}")
-    table.add_row(escape("peak pressure [MPa]"), f"{summary['peak_pressure_MPa']:.4f}",
+    table.add_row(escape("peak pressure, nodal (edge) [MPa]"), f"{summary['peak_pressure_MPa']:.4f}",
                   f"{summary['mean_pressure_MPa']:.4f}", f"{summary['peak_pressure_uniform_wear_MPa']:.4f}")
+    table.add_row(escape(f"design peak, {summary['design_peak_band_mm']:.3g} mm band [MPa]"),
+                  f"{summary['design_peak_pressure_MPa']:.4f}", "", "")
     if summary.get("required_torque_Nm"):
         table.add_row(escape("capacity margin [%]"), f"{100 * summary['capacity_margin_fe']:+.1f}",
                       f"{100 * summary['capacity_margin_uniform_pressure']:+.1f}",
                       f"{100 * summary['capacity_margin_uniform_wear']:+.1f}")
     console.print(table)
+    if len(summary.get("surfaces", [])) > 1:
+        console.print(surface_table(summary["surfaces"]))
     for extra in extra_tables:          # the analyses' own tables (wear-in: new against worn in)
         console.print(extra)
     console.print(f"capacity position xi = {summary['capacity_position']:.3f} (1 = uniform pressure, "
@@ -126,11 +144,14 @@ def print_table(console, case, summary: dict, folder: Path, extra_tables=()) -> 
     console.print(summary["verdict"], markup=False)
     for warning in summary.get("warnings", []):
         console.print(f"warning: {warning}", markup=False, style="bold red")
+    if summary.get("failed_criteria"):
+        console.print("FAILED: " + ", ".join(summary["failed_criteria"]), markup=False, style="bold red")
     if "tilt_moment_Nm" in summary:
         console.print(f"tilt {summary['axis_tilt_deg']:g} deg, offset {summary['radial_offset_mm']:g} mm "
                       f"({summary['guidance']}): peak {summary['peak_pressure_MPa']:.4f} MPa at "
                       f"r = {summary['peak_pressure_r_mm']:.2f} mm, theta = {summary['peak_pressure_theta_deg']:.1f} deg; "
-                      f"tilting moment on the guidance {summary['tilt_moment_Nm']:.2f} N·m", markup=False)
+                      f"tilting moment on the guidance {summary['tilt_moment_Nm']:.2f} N·m, "
+                      f"radial force {summary['guidance_radial_force_N']:.1f} N", markup=False)
     files = sorted(p.name for p in Path(folder).iterdir() if p.is_file() and not p.name.startswith(".")) if Path(folder).is_dir() else []
     console.print(f"results: {folder}/ ({', '.join(files)})", markup=False)
     console.print(f"caution: {summary['caution']}", markup=False, style="italic")

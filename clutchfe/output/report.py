@@ -12,6 +12,9 @@ from ..schema import SCHEMA
 from ..verification.table import format_error, format_tolerance
 from .report_html import esc, num, page, picture, sig, table
 
+# tables whose keys only matter when the case asks for that analysis
+OPTIONAL_TABLES = ("wear",)
+
 ASSUMPTIONS = (
     "Axisymmetric linear elasticity of every body in the (r, z) section, quadratic triangles; the friction "
     "lining is its own layer and material, bonded to its carrier.",
@@ -19,19 +22,32 @@ ASSUMPTIONS = (
     "(no penetration, no tension).",
     "No circumferential friction in the section: torque = n μ ∫ p r dA from the normal pressure (the usual "
     "clutch assumption).",
-    "No thermal distortion, no centrifugal load, no wear-in, no axis tilt or radial offset in this solve.",
+    "No thermal distortion and no centrifugal load in this solve.",
     "Hand formulas: uniform pressure and uniform wear (p·r = const) at the same axial force (Shigley's "
     "Mechanical Engineering Design, clutch chapter; Juvinall & Marshek).",
     "Material data, μ and the lining's allowable pressure are the user's inputs; μ scatters in service and "
     "scales every torque here in proportion.",
+    "The allowable pressure is judged on the design peak: the highest mean pressure over a band of 10 % of the "
+    "face width along the face. The nodal peak at a lining end is an edge concentration of the sharp-ended "
+    "elastic layer and grows without bound under mesh refinement; it is shown, not judged.",
 )
+# what each analysis adds to the list when it ran, and what is said when it did not
+ANALYSIS_ASSUMPTIONS = {
+    "tilt": ("Axis tilt and radial offset by Fourier harmonics of the axisymmetric section (Zienkiewicz & Taylor, "
+             "The Finite Element Method, axisymmetric solids under non-symmetric loads), contact on an (r, θ) grid.",
+             "No axis tilt or radial offset in this solve."),
+    "wear": ("Wear-in by Archard's law (wear depth rate ∝ p · sliding speed), backward-Euler steps on the "
+             "condensed contact; the worn-in state does not depend on the wear coefficient.",
+             "No wear-in in this solve: the results describe the new interface."),
+}
 
 
-def write_report(case, summary: dict, folder: Path, rows, passed: bool) -> str:
+def write_report(case, summary: dict, folder: Path, rows, passed: bool, sections: dict | None = None) -> str:
     """report.html (and report.pdf when WeasyPrint is usable) in ``folder``; returns what
-    became of the PDF (its file name, or why it was not written)."""
+    became of the PDF (its file name, or why it was not written).  ``sections``: the HTML
+    section of each analysis that ran, by name ("tilt", "wear")."""
     folder = Path(folder)
-    html_text = report_html(case, summary, folder, rows, passed)
+    html_text = report_html(case, summary, folder, rows, passed, sections or {})
     (folder / "report.html").write_text(html_text, encoding="utf-8")
     return write_pdf(html_text, folder / "report.pdf")
 
@@ -46,13 +62,14 @@ def write_pdf(html_text: str, path: Path) -> str:
     return path.name
 
 
-def report_html(case, summary: dict, folder: Path, rows, passed: bool) -> str:
+def report_html(case, summary: dict, folder: Path, rows, passed: bool, sections: dict | None = None) -> str:
+    sections = sections or {}
     parts = [
         f"<h1>Torque capacity check: {esc(case.name)}</h1>",
         f'<p class="caution">Caution: {esc(summary["caution"])}</p>',
-        _job(case, summary), _results(summary), _margins(summary), _allowable(case, summary),
-        _pictures(folder, summary), _mesh_study(summary.get("mesh_study") or {}), _verification(rows, passed),
-        _inputs(case), _assumptions(), _provenance(summary),
+        _job(case, summary), _results(summary), _surfaces(summary), _margins(summary), _allowable(case, summary),
+        _pictures(folder, summary), *sections.values(), _mesh_study(summary.get("mesh_study") or {}),
+        _verification(rows, passed), _inputs(case), _assumptions(sections), _provenance(summary),
         f'<p class="caution">Caution: {esc(summary["caution"])}</p>',
     ]
     return page(f"clutchfe report: {case.name}", "\n".join(parts))
@@ -128,19 +145,43 @@ def _margins(s: dict) -> str:
 
 def _allowable(case, s: dict) -> str:
     allowable = case.lining.allowable_pressure
+    design = (f"Design peak {num('design_peak_pressure_MPa', s.get('design_peak_pressure_MPa'), 4)} MPa: the "
+              f"highest mean pressure over a {num('design_peak_band_mm', s.get('design_peak_band_mm'), 2)} mm band "
+              f"along the face (10 % of its width), centred at r = "
+              f"{num('design_peak_radius_mm', s.get('design_peak_radius_mm'), 2)} mm; it converges under mesh "
+              "refinement (see the mesh study). ")
+    nodal = (f"The nodal peak {num('peak_pressure_MPa', s['peak_pressure_MPa'], 4)} MPa at r = "
+             f"{num('peak_pressure_radius_mm', s.get('peak_pressure_radius_mm'), 2)} mm is an edge concentration at "
+             "the lining end: it grows with refinement and is shown, not judged.")
     if not allowable:
-        return ("<h2>Peak pressure against the lining</h2><p>No allowable pressure given "
-                "(<code>[lining] allowable_pressure</code>); peak pressure "
-                f"{num('peak_pressure_MPa', s['peak_pressure_MPa'], 4)} MPa.</p>")
-    ratio = s["peak_pressure_over_allowable"]
-    verdict = ('<span class="bad">above the allowable pressure</span>' if ratio > 1 else "within the allowable pressure")
-    return ("<h2>Peak pressure against the lining</h2>"
-            f"<p>Peak {num('peak_pressure_MPa', s['peak_pressure_MPa'], 4)} MPa at r = "
-            f"{num('peak_pressure_radius_mm', s.get('peak_pressure_radius_mm'), 2)} mm against the lining's allowable "
-            f"{esc(f'{allowable:g}')} MPa: ratio {num('peak_pressure_over_allowable', ratio, 3)} [-], {verdict}. "
-            "A peak at a lining end is an edge concentration that grows with mesh refinement (see the mesh "
-            "study); the mean pressure "
-            f"{num('mean_pressure_MPa', s['mean_pressure_MPa'], 4)} MPa is the mesh-independent figure.</p>")
+        return ("<h2>Pressure against the lining</h2><p>No allowable pressure given "
+                f"(<code>[lining] allowable_pressure</code>). {design}{nodal}</p>")
+    ratio = s.get("design_peak_over_allowable")
+    verdict = ('<span class="bad">ABOVE the allowable pressure</span>' if ratio is not None and ratio > 1
+               else "within the allowable pressure")
+    return ("<h2>Pressure against the lining</h2>"
+            f"<p>{design}Against the lining's allowable {num('allowable_pressure_MPa', allowable, 3)} MPa: ratio "
+            f"{num('design_peak_over_allowable', ratio, 3)} [-], {verdict}. {nodal} Mean pressure "
+            f"{num('mean_pressure_MPa', s['mean_pressure_MPa'], 4)} MPa.</p>")
+
+
+def _surfaces(s: dict) -> str:
+    """Load and torque split per friction surface (plate packs: the surfaces act in series for the
+    clamp force, each carrying W, and in parallel for the torque)."""
+    surfaces = s.get("surfaces") or []
+    if len(surfaces) < 2:
+        return ""
+    rows = [[esc(x["name"]), num(f"surfaces.{k}.axial_force_N", x["axial_force_N"], 1),
+             num(f"surfaces.{k}.axial_force_over_clamp_force", x["axial_force_over_clamp_force"], 4),
+             num(f"surfaces.{k}.torque_Nm", x["torque_Nm"], 3), num(f"surfaces.{k}.torque_share", x["torque_share"], 2, 100),
+             num(f"surfaces.{k}.effective_radius_mm", x["effective_radius_mm"], 3),
+             num(f"surfaces.{k}.design_peak_pressure_MPa", x["design_peak_pressure_MPa"], 4),
+             num(f"surfaces.{k}.contact_area_fraction", x["contact_area_fraction"], 2, 100)]
+            for k, x in enumerate(surfaces)]
+    return ("<h2>Load and torque per friction surface</h2><p>The surfaces of a pack act in series along the axis "
+            "(each carries the whole clamp force W) and in parallel for the torque (the torques add).</p>"
+            + table(["surface", "axial force [N]", "axial force / W [-]", "torque [N·m]", "torque share [%]",
+                     "R_eff [mm]", "design peak [MPa]", "contact [%]"], rows))
 
 
 def _pictures(folder: Path, s: dict) -> str:
@@ -152,13 +193,16 @@ def _pictures(folder: Path, s: dict) -> str:
                 f"triangles, {num('mesh.nodes', mesh.get('nodes'), 0)} nodes, element order "
                 f"{num('mesh.element_order', mesh.get('element_order'), 0)}. Dimensions in mm."),
         picture(folder / "pressure.png", "contact pressure against both hand curves",
-                "FE contact pressure [MPa] against radius [mm], with the uniform-pressure and uniform-wear "
-                "pressures at the same axial force."),
+                ("FE contact pressure [MPa] against radius [mm]" + (", averaged around the circumference (the "
+                 "tilt section shows p(r, θ))" if "tilt_moment_Nm" in s else "") + ", with the uniform-pressure "
+                 "and uniform-wear pressures at the same axial force.")),
         picture(folder / "effective_radius.png", "effective radius on the friction annulus",
                 f"FE effective radius {num('effective_radius_mm', s['effective_radius_mm'], 3)} mm and both hand "
                 f"radii on the bar [r1, r2]; ξ = {num('capacity_position', s['capacity_position'], 4)}."),
-        picture(folder / "deformed.png", "deformed section coloured by von Mises stress",
-                "Deformed section (displacements magnified), coloured by von Mises stress [MPa]."),
+        # a tilted solve has no (r, z) displacement field: no deformed section to show
+        *([picture(folder / "deformed.png", "deformed section coloured by von Mises stress",
+                   "Deformed section (displacements magnified), coloured by von Mises stress [MPa].")]
+          if "tilt_moment_Nm" not in s else []),
     ])
 
 
@@ -166,41 +210,63 @@ def _mesh_study(study: dict) -> str:
     head = "<h2>Solution verification: mesh convergence</h2>"
     if not study or "skipped" in study:
         return head + f'<p class="warn">Mesh study not run: {esc(study.get("skipped", "not requested"))}.</p>'
-    mesh_rows = [[esc(m["name"]), num(f"mesh_study.meshes.{k}.face_spacing_mm", m["face_spacing_mm"], 4),
+    mesh_rows = [[esc(m["name"]), num(f"mesh_study.meshes.{k}.refinement", m["refinement"], 3),
+                  num(f"mesh_study.meshes.{k}.face_spacing_mm", m["face_spacing_mm"], 4),
                   num(f"mesh_study.meshes.{k}.interface_element_size_mm", m["interface_element_size_mm"], 4),
                   num(f"mesh_study.meshes.{k}.lining_layers", m["lining_layers"], 0),
                   num(f"mesh_study.meshes.{k}.triangles", m["triangles"], 0)] for k, m in enumerate(study["meshes"])]
     rows = []
     for key, q in study["quantities"].items():
         p = f"mesh_study.quantities.{key}"
-        rows.append([esc(q["label"]), num(f"{p}.fine", q["fine"], 5), num(f"{p}.medium", q["medium"], 5),
-                     num(f"{p}.coarse", q["coarse"], 5), esc(q["behaviour"]),
-                     num(f"{p}.observed_order", q["observed_order"], 2) + (" (assumed 1)" if q["order_assumed"] else ""),
-                     num(f"{p}.extrapolated", q["extrapolated"], 5), num(f"{p}.gci_fine", q["gci_fine"], 4, 100),
-                     num(f"{p}.band_fine", q["band_fine"], 5), num(f"{p}.asymptotic_ratio", q["asymptotic_ratio"], 3)])
+        order = num(f"{p}.observed_order", q["observed_order"], 2)
+        if q["order_assumed"]:
+            order += " (none; 1 assumed)"
+        elif q.get("order_capped"):
+            order += f" (capped: {q['order_used']:g} used)"
+        extrapolated = (num(f"{p}.extrapolated", q["extrapolated"], 5) if not q.get("extrapolation_refused")
+                        else f'<span class="bad">refused: {esc(q["extrapolation_refused"])}</span>')
+        rows.append([esc(q["label"]) + ("" if q["judged"] else " (shown, not judged)"),
+                     num(f"{p}.coarse", q["coarse"], 5), num(f"{p}.medium", q["medium"], 5),
+                     num(f"{p}.fine", q["fine"], 5), esc(q["behaviour"]), order, extrapolated,
+                     num(f"{p}.band_coarse", q.get("band_coarse"), 5), num(f"{p}.band_fine", q["band_fine"], 5),
+                     num(f"{p}.asymptotic_ratio", q["asymptotic_ratio"], 3)])
     verdict_class = "verdict" if study["converged"] else "warn"
+    similar = ("geometrically similar" if study["geometrically_similar"]
+               else '<span class="bad">NOT geometrically similar</span>')
     return (head
-            + f"<p>Three meshes with refinement ratio {num('mesh_study.refinement_ratio_nominal', study['refinement_ratio_nominal'], 2)} "
-              "on every mesh size; this run's mesh is the finest. Measured ratios of the mean node spacing along "
-              f"the friction faces: r21 = {num('mesh_study.refinement_ratio_21', study['refinement_ratio_21'], 3)}, "
-              f"r32 = {num('mesh_study.refinement_ratio_32', study['refinement_ratio_32'], 3)}; from the element "
-              f"counts: {num('mesh_study.element_count_ratio_21', study['element_count_ratio_21'], 3)}, "
-              f"{num('mesh_study.element_count_ratio_32', study['element_count_ratio_32'], 3)} (the bulk is held "
-              "back by the minimum elements through thin parts). Method: " + esc(study["source"]) + ".</p>"
-            + table(["mesh", "face node spacing [mm]", "interface element size [mm]", "lining layers", "triangles"],
-                    mesh_rows)
-            + table(["quantity", "fine (this run)", "medium", "coarse", "convergence", "observed order p",
-                     "Richardson extrapolation", "GCI fine [%]", "band ± [unit of quantity]",
+            + f"<p>This run's mesh and two finer ones: every element size divided by "
+              f"{num('mesh_study.refinement_ratio_nominal', study['refinement_ratio_nominal'], 2)} and its square, "
+              "every count (lining layers, thin-part elements) multiplied, the graded zones kept. Achieved ratios of "
+              f"the mean node spacing along the friction faces: "
+              f"{num('mesh_study.refinement_ratio_32', study['refinement_ratio_32'], 3)} and "
+              f"{num('mesh_study.refinement_ratio_21', study['refinement_ratio_21'], 3)}; from the element counts: "
+              f"{num('mesh_study.element_count_ratio_32', study['element_count_ratio_32'], 3)} and "
+              f"{num('mesh_study.element_count_ratio_21', study['element_count_ratio_21'], 3)}: {similar}. "
+              "Method: " + esc(study["source"]) + ".</p>"
+            + table(["mesh", "refinement", "face node spacing [mm]", "interface element size [mm]", "lining layers",
+                     "triangles"], mesh_rows)
+            + table(["quantity", "this run", "refined once", "refined twice", "convergence", "observed order p",
+                     "Richardson extrapolation", "band of this run's value ±", "band of the finest ±",
                      "asymptotic ratio (1 expected)"], rows)
             + f'<p class="{verdict_class}">{esc(study["verdict"])}</p>'
             + f"<p>{esc(study['peak_pressure_note'])}</p>"
-            + '<p class="small">GCI = 1.25 |f1 − f2| / (|f1| (r21^p − 1)), the fine-mesh index of Celik et al. '
-              "(2008); the asymptotic ratio GCI32 / (r21^p GCI21) is 1 in the asymptotic range (Roache 1998). "
-              "Where no order can be read, the index uses Roache's safety factor 3 with an assumed order 1.</p>")
+            + '<p class="small">Band of this run\'s value = Fs |f_run − f_ext|, f_ext the Richardson extrapolation '
+              "from the two finest meshes with the observed order p (at most the formal order of the elements; "
+              "above it the formal order and Fs = 3 are used), Fs = 1.25 (Roache 1998; Celik et al. 2008). The band "
+              "of the finest is its fine-grid GCI. Where no order can be read, Roache's safety factor 3 with an "
+              "assumed order 1 is used. An extrapolation that is physically impossible is refused.</p>")
 
 
 def _verification(rows, passed: bool) -> str:
-
+    # rows from the stored table carry their origin (clutchfe.verification.store): stored, missing, stale
+    head = "<h2>Verification of the solver against closed forms</h2>"
+    origin = getattr(rows, "origin", None)
+    state = origin.state if origin is not None else "fresh"
+    if state in ("missing", "stale"):
+        return (head + f'<p class="bad">The verification table is {esc(state)}: {esc(origin.reason)}. This report '
+                "carries no verification of the solver against its closed forms; do not rely on it until "
+                f"<code>{esc(origin.command)}</code> has been run on this installation (it runs the suite once and "
+                "stores its table for every later run of this code and these versions) and the case run again.</p>")
     body = [[esc(r.case), esc(r.quantity), sig(r.computed, 6), sig(r.reference, 6), esc(format_error(r)),
              esc(format_tolerance(r)), esc(r.source), "pass" if r.passed else '<span class="bad">FAIL</span>']
             for r in rows]
@@ -208,17 +274,21 @@ def _verification(rows, passed: bool) -> str:
     status = (f"<p>All {len(rows)} checks pass.</p>" if passed else
               f'<p class="bad">{failed} of {len(rows)} checks FAIL: the solver does not meet its references '
               "on this installation; do not rely on this report.</p>")
-    return ("<h2>Verification of the solver against closed forms</h2>"
-            "<p>The same suite as <code>clutchfe verify</code>, run on this installation.</p>"
+    where = ("run on this installation" if state == "fresh" else
+             f"as <code>{esc(origin.command)}</code> stored it on this installation on {esc(origin.made or 'an unknown date')} (UTC) for "
+             f"this clutchfe, these package versions and this code (SHA-256 of its source "
+             f"<code>{esc(origin.code_hash[:16])}…</code>)")
+    return (head + f"<p>The same suite as <code>clutchfe verify</code>, {where}.</p>"
             + status + table(["case", "quantity", "computed", "reference", "error", "tolerance", "source", "result"],
                              body, numeric_from=2))
 
 
 def _inputs(case) -> str:
-
     rows = []
     for key, value in case.flat().items():
         table_name, _, leaf = key.rpartition(".")
+        if table_name in OPTIONAL_TABLES and table_name not in case.tables_given:
+            continue                # an analysis the case did not ask for: its defaults were not used
         spec = SCHEMA.get(table_name, {}).get(leaf)
         unit = spec.unit if spec is not None else ""
         rows.append([f"<code>{esc(key)}</code>", esc(f"{value:g}" if isinstance(value, float) else value), esc(unit)])
@@ -226,8 +296,10 @@ def _inputs(case) -> str:
             + table(["key", "value", "unit"], rows, numeric_from=1))
 
 
-def _assumptions() -> str:
-    items = "".join(f"<li>{esc(a)}</li>" for a in ASSUMPTIONS)
+def _assumptions(sections: dict) -> str:
+    said = list(ASSUMPTIONS) + [ran if name in sections else absent
+                                for name, (ran, absent) in ANALYSIS_ASSUMPTIONS.items()]
+    items = "".join(f"<li>{esc(a)}</li>" for a in said)
     return f"<h2>Assumptions and limits of the model</h2><ul>{items}</ul>"
 
 

@@ -66,15 +66,19 @@ class PreparedCase:
     mesh: SectionMesh
     model: FeModel
     solver: ContactSolver
-    tilted_solvers: dict = field(default_factory=dict)     # angular divisions -> TiltedContactSolver
+    # (angular divisions, guide ring) -> TiltedContactSolver: misalignment.guided_at is a
+    # misalignment key, so not in the stiffness key, but it changes the harmonic condensation
+    tilted_solvers: dict = field(default_factory=dict)
 
-    def tilted(self, divisions: int) -> TiltedContactSolver:
-        """The harmonic solver on ``divisions`` angles, built on first use (harmonic 0 is ``solver``)."""
-        if divisions not in self.tilted_solvers:
+    def tilted(self, divisions: int, guided_at: str = "load_ring") -> TiltedContactSolver:
+        """The harmonic solver on ``divisions`` angles with the pressed part held across the axis at
+        ``guided_at`` (fem.tilted.GUIDES), built on first use (harmonic 0 is ``solver``)."""
+        key = (divisions, guided_at)
+        if key not in self.tilted_solvers:
             pressed = next(b.name for b in self.section.bodies if b.role == "pressed")
-            self.tilted_solvers[divisions] = TiltedContactSolver(self.model, pressed, grid=divisions,
-                                                                 base=self.solver)
-        return self.tilted_solvers[divisions]
+            self.tilted_solvers[key] = TiltedContactSolver(self.model, pressed, grid=divisions,
+                                                           base=self.solver, guide=guided_at)
+        return self.tilted_solvers[key]
 
 
 @dataclass(frozen=True)
@@ -172,9 +176,10 @@ class SolveService:
         if guidance not in GUIDANCE_CHOICES:
             raise ValueError(f"misalignment.guidance = {guidance!r}: allowed {', '.join(GUIDANCE_CHOICES)}")
         with self._lock:                            # built once, on first use
-            solver = prepared.tilted(int(case.mesh.angular_divisions))
+            solver = prepared.tilted(int(case.mesh.angular_divisions), mis.guided_at or "load_ring")
+        pivot = solver.pivot_z + (mis.tilt_pivot_offset or 0.0)    # from the middle of the friction face
         sol = solver.solve(mis.axis_tilt, mis.radial_offset, self_aligning=guidance == "self_aligning",
-                           load_scale=scale, gaps=gaps)
+                           load_scale=scale, gaps=gaps, pivot_z=pivot)
         fe = FeResult(displacement=np.zeros((2, 0)), stress={}, interfaces=[g.ring() for g in sol.interfaces],
                       rigid_approach=sol.approach, axial_force_balance_error=sol.axial_force_balance_error,
                       dofs=int(solver.base.system.basis.N + solver.hs.basis.N), timings=sol.timings,

@@ -89,7 +89,7 @@ def hertz_sphere_on_flat() -> list[Check]:
         relative(name, "approach between axis points 1 mm deep [mm]", fe_local, local, 2e-2,
                  HERTZ_SOURCE + ", §3.4"),
         relative(name, "sum of contact forces [N]", float(np.sum(it.normal_force)), P, 1e-9,
-                 "statics (force balance)"),
+                 "statics: force balance (Timoshenko & Goodier 1970)"),
     ]
 
 

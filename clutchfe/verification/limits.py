@@ -16,7 +16,7 @@ from ..solve import SolveService
 from .checks import Check, absolute, relative
 
 WINKLER_SOURCE = "Johnson 1985, §5.8 (elastic foundation)"
-LINEAR_SOURCE = "linear elasticity (zero-gap contact is homogeneous in W)"
+LINEAR_SOURCE = "linear elasticity (Timoshenko & Goodier 1970): zero-gap contact is homogeneous in W"
 LINING_E = 400.0                 # MPa, a moulded lining (order of magnitude, from memory)
 STIFF_BODIES = 1e5               # body modulus / lining modulus: numerically rigid bodies
 
@@ -96,5 +96,5 @@ def load_linearity() -> list[Check]:
         absolute(name, "capacity position ξ at 2W [-]", two_w.result["capacity_position"],
                  ref.result["capacity_position"], 1e-6, LINEAR_SOURCE),
         relative(name, "torque at 2μ [N·m]", two_mu.result["torque_fe_Nm"], 2 * t, 1e-9,
-                 "T = n μ ∫ p r dA (design.md §5; Shigley)"),
+                 "T = n μ ∫ p r dA (Shigley's Mechanical Engineering Design, clutch chapter)"),
     ]

@@ -2,6 +2,9 @@
 
 A case is one entry of CASES: a title and a function returning its Check rows.  A new case
 (uniform-wear limit, harmonics against a 3D solve, ...) is one more entry here.
+
+:func:`run_verification` (``clutchfe verify``) always runs the suite afresh and stores the table
+for runs (:mod:`.store`); a run reads the stored table and never runs the suite itself.
 """
 from __future__ import annotations
 
@@ -13,6 +16,7 @@ from pathlib import Path
 from typing import Callable
 
 from .checks import Check
+from .store import VerificationRows, json_row, store_table
 from .contact import hertz_sphere_on_flat, rigid_flat_punch
 from .limits import linear_gap, load_linearity, thin_lining_limit
 from .solids import lame_cylinder
@@ -39,6 +43,7 @@ CASES: list[VerificationCase] = [
 ]
 
 _memo: dict[tuple, tuple] = {}
+_SHIPPED = tuple((c.title, c.run) for c in CASES)     # only the shipped registry's table is stored for runs
 
 
 def run_cases(cases: list[VerificationCase] | None = None) -> list[Check]:
@@ -53,19 +58,27 @@ def run_cases(cases: list[VerificationCase] | None = None) -> list[Check]:
     return rows
 
 
-def run_verification(out_dir: str | Path | None = None) -> tuple[list[Check], bool]:
-    """Run the suite; with ``out_dir`` also write verification.json and verification.csv there."""
+def run_verification(out_dir: str | Path | None = None, store: bool | None = None) -> tuple[list[Check], bool]:
+    """Run the suite afresh; with ``out_dir`` also write verification.json and verification.csv there.
+
+    ``store`` (default: when the registry is the shipped one, not a test's stand-in) also stores the
+    table in the per-user cache for runs (:func:`.store.store_table`); the returned rows then carry
+    ``stored_at``, the file written."""
     start = time.perf_counter()
-    rows = run_cases()
+    rows = VerificationRows(run_cases())
     passed = bool(rows) and all(r.passed for r in rows)
     _memo[_registry_key()] = (rows, passed)
+    seconds = time.perf_counter() - start
     if out_dir is not None:
-        write_table(Path(out_dir), rows, passed, time.perf_counter() - start)
+        write_table(Path(out_dir), rows, passed, seconds)
+    rows.stored_at = None
+    if store if store is not None else _registry_key() == _SHIPPED:
+        rows.stored_at = store_table(rows, passed, seconds)
     return rows, passed
 
 
 def verification_rows() -> tuple[list[Check], bool]:
-    """The suite's rows, run once per process (reports of a study reuse them)."""
+    """The suite's rows, run once per process (``clutchfe verify`` and tests; a run reads the stored table)."""
     if _registry_key() not in _memo:
         run_verification()
     return _memo[_registry_key()]
@@ -83,7 +96,7 @@ def write_table(folder: Path, rows: list[Check], passed: bool, seconds: float) -
     folder.mkdir(parents=True, exist_ok=True)
     write_json(folder / "verification.json", {
         "all_passed": passed, "seconds": round(seconds, 2), "versions": versions(),
-        "rows": [_json_row(r) for r in rows]})
+        "rows": [json_row(r) for r in rows]})
     with open(folder / "verification.csv", "w", newline="", encoding="utf-8") as fh:
         out = csv.writer(fh)
         out.writerow(["case", "quantity", "computed", "reference", "error", "error_kind", "tolerance", "source",
@@ -91,11 +104,6 @@ def write_table(folder: Path, rows: list[Check], passed: bool, seconds: float) -
         for r in rows:
             out.writerow([r.case, r.quantity, f"{r.computed:.10g}", f"{r.reference:.10g}", f"{r.error:.6g}",
                           r.error_kind, f"{r.tolerance:.6g}", r.source, "pass" if r.passed else "FAIL"])
-
-
-def _json_row(r: Check) -> dict:
-    # JSON has no NaN or infinity: a case that did not run carries nulls
-    return {k: (v if not isinstance(v, float) or math.isfinite(v) else None) for k, v in r.as_dict().items()}
 
 
 def format_error(r: Check) -> str:
@@ -131,3 +139,6 @@ def print_verification(rows: list[Check], passed: bool, console=None) -> None:
     failed = sum(not r.passed for r in rows)
     console.print(f"{len(rows) - failed} passed, {failed} failed" if rows else "no verification rows ran",
                   markup=False, style=None if passed else "bold red")
+    stored = getattr(rows, "stored_at", None)
+    if stored is not None:
+        console.print(f"table stored for runs of this code and these versions: {stored}", markup=False)

@@ -15,7 +15,8 @@ from .checks import Check, absolute, relative
 from .meshes import BlockSection
 
 WINKLER_TILT_SOURCE = "Johnson 1985, §5.8 (elastic foundation): p = k (δ0 + φ r cos θ)"
-SOLID_SOURCE = "independent 3D tetrahedral FE solve (fem/solid3d.py)"
+SOLID_SOURCE = ("independent 3D tetrahedral FE solve of the revolved section "
+                "(Zienkiewicz & Taylor, The Finite Element Method)")
 R1, R2, LINING_T, LINING_E, W = 60.0, 75.0, 0.5, 10.0, 2000.0
 
 

@@ -1,8 +1,8 @@
 """Contact solve against one linear elastic solve of the same mesh, on the cone demo.
 
 Prints, for the default mesh and for about 4x the elements: DOFs, assembly time,
-one linear elastic solve, the whole contact solve, their ratio (design.md §8 target
-<= 1.5) and peak memory.  Ratios are measured in this one run; nothing is asserted.
+one linear elastic solve, the whole contact solve, their ratio (docs/solver-notes.md
+target <= 1.5) and peak memory.  Ratios are measured in this one run; nothing is asserted.
 
     python3 -m tests.benchmarks.bench_contact      (from the repository root)
 """

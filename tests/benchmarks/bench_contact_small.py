@@ -1,5 +1,5 @@
-"""Contact solve versus one linear elastic solve of the same mesh (design.md §8:
-target ratio <= 1.5).  Prints ratios measured in this run; run from the repository root with
+"""Contact solve versus one linear elastic solve of the same mesh (docs/solver-notes.md,
+speed targets: ratio <= 1.5).  Prints ratios measured in this run; run from the repository root with
 ``python3 -m tests.benchmarks.bench_contact_small [h]``."""
 import sys
 import time

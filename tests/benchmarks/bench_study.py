@@ -1,4 +1,4 @@
-"""Study throughput (design.md §8; issue: 1000 misalignment/load samples on one geometry in under a
+"""Study throughput (docs/solver-notes.md, speed targets; issue: 1000 misalignment/load samples on one geometry in under a
 minute on 2 cores, and >= 1.7x from 1 to 2 workers on a study that varies stiffness).
 
 Prints figures measured in this run, no asserts:  ``python3 -m tests.benchmarks.bench_study``

@@ -2,8 +2,9 @@
 
 The solve service runs the harmonic model (fem/harmonic.py, fem/fft_contact.py,
 fem/tilted.py) for a case with a tilt or an offset; this module reads that solve: the
-peak on the (r, θ) grid, the open area, the moment on the guidance and the tilt left after
-self-aligning.  The torque is μ ∫ p r dA over the whole face from the θ-summed ring forces,
+peak on the (r, θ) grid, the open area, the moment and the radial force on the guidance,
+the pivot the tilt was taken about and the tilt left after self-aligning.  The torque is
+μ ∫ p r dA over the whole face from the θ-summed ring forces,
 so the comparison stage is reused unchanged.
 """
 from __future__ import annotations
@@ -31,6 +32,10 @@ class TiltResult:
     contact_area_fraction: float
     approach_mm: dict         # free body -> axial rigid translation
     floating_tilt_deg: dict   # free-tilt body -> tilt (deg)
+    tilt_pivot_offset_mm: float = 0.0     # pivot's axial distance from the middle of the friction face
+    tilt_pivot_z_mm: float = math.nan     # the pivot's z in the section (pressure.csv z_mm)
+    guided_at: str = "load_ring"          # where the guidance holds the part across the axis
+    guidance_radial_force_N: float = 0.0  # force across the axis the guidance carries
 
 
 def tilt_result(solved) -> TiltResult:
@@ -48,7 +53,9 @@ def tilt_result(solved) -> TiltResult:
         residual_tilt_deg=math.degrees(math.hypot(math.radians(mis.axis_tilt) + own[0], own[1])),
         peak_pressure_MPa=peak, peak_pressure_r_mm=r, peak_pressure_theta_deg=theta, peak_pressure_surface=surface,
         contact_area_fraction=grid_contact_fraction(sol.interfaces), approach_mm=sol.approach,
-        floating_tilt_deg={k: math.degrees(math.hypot(*v)) for k, v in sol.tilt.items() if k != pressed and k in names})
+        floating_tilt_deg={k: math.degrees(math.hypot(*v)) for k, v in sol.tilt.items() if k != pressed and k in names},
+        tilt_pivot_offset_mm=float(mis.tilt_pivot_offset or 0.0), tilt_pivot_z_mm=sol.pivot_z,
+        guided_at=mis.guided_at or "load_ring", guidance_radial_force_N=math.hypot(*sol.radial_force))
 
 
 def tilt_summary_keys(t: TiltResult) -> dict:
@@ -60,4 +67,6 @@ def tilt_summary_keys(t: TiltResult) -> dict:
         "radial_offset_mm": t.radial_offset_mm, "guidance": t.guidance,
         "residual_tilt_deg": t.residual_tilt_deg, "floating_tilt_deg": t.floating_tilt_deg,
         "open_area_fraction": 1.0 - t.contact_area_fraction,
+        "tilt_pivot_offset_mm": t.tilt_pivot_offset_mm, "tilt_pivot_z_mm": t.tilt_pivot_z_mm,
+        "guided_at": t.guided_at, "guidance_radial_force_N": t.guidance_radial_force_N,
     }

@@ -40,23 +40,41 @@ def _closed_theta(theta):
 
 
 def polar_picture(path: Path, t: TiltResult) -> None:
+    """p(r, θ) of every friction face on a polar map: the open zone hatched inside its outline,
+    each face's peak marked with its value, three radial ticks (r1, mid, r2) that stay readable."""
     n = len(t.interfaces)
-    fig = Figure(figsize=(4.6 * n, 4.6))
+    fig = Figure(figsize=(4.8 * n, 5.0))
     axes = fig.subplots(1, n, subplot_kw={"projection": "polar"}, squeeze=False)
     vmax = max(g.pressure.max() for g in t.interfaces)
     for ax, g in zip(axes[0], t.interfaces):
         th = _closed_theta(g.theta)
         p = np.hstack([g.pressure, g.pressure[:, :1]])
+        closed = np.hstack([g.in_contact, g.in_contact[:, :1]]).astype(float)
         mesh = ax.pcolormesh(th, g.r, p, shading="gouraud", vmin=0.0, vmax=vmax, cmap="viridis")
-        ax.contour(th, g.r, np.hstack([g.in_contact, g.in_contact[:, :1]]).astype(float), levels=[0.5],
-                   colors="w", linewidths=0.8)
-        ax.set_rorigin(g.r.min() - 1.5 * (g.r.max() - g.r.min()))
+        if closed.min() < 0.5:                  # part of the face is open: hatch it, outline its edge
+            ax.contourf(th, g.r, 1.0 - closed, levels=[0.5, 1.5], colors="none", hatches=["////"]) \
+                .set_edgecolor("0.85")
+            ax.contour(th, g.r, closed, levels=[0.5], colors="w", linewidths=1.2)
+        width = g.r.max() - g.r.min()
+        ax.set_rorigin(g.r.min() - 1.5 * width)
         ax.set_ylim(g.r.min(), g.r.max())
-        ax.set_title(f"surface {g.name}: pressure [MPa]\nr [mm] radial, θ [deg] around; white: contact edge",
-                     fontsize=9)
-        fig.colorbar(mesh, ax=ax, shrink=0.7, label="pressure [MPa]")
-    fig.suptitle(f"{t.case_name}: tilt {t.axis_tilt_deg:g} deg, offset {t.radial_offset_mm:g} mm "
-                 f"({t.guidance}); peak {t.peak_pressure_MPa:.3g} MPa at r = {t.peak_pressure_r_mm:.1f} mm, "
+        ticks = [g.r.min(), 0.5 * (g.r.min() + g.r.max()), g.r.max()]
+        ax.set_rticks(ticks, [f"{r:.0f}" for r in ticks[:-1]] + [f"{ticks[-1]:.0f} mm"])
+        ax.set_rlabel_position(67.5)
+        ax.tick_params(axis="y", labelsize=7)
+        for label in ax.get_yticklabels():
+            label.set_bbox(dict(boxstyle="round,pad=0.15", fc="w", ec="none", alpha=0.8))
+        i, j = np.unravel_index(np.argmax(g.pressure), g.pressure.shape)
+        ax.plot([g.theta[j]], [g.r[i]], marker="*", ms=14, mfc="r", mec="k", clip_on=False, zorder=5)
+        ax.annotate(f"peak {g.pressure[i, j]:.3g} MPa", (g.theta[j], g.r[i]), xytext=(0, -16),
+                    textcoords="offset points", ha="center", fontsize=8, color="k", zorder=6,
+                    bbox=dict(boxstyle="round,pad=0.2", fc="w", ec="r", alpha=0.9), annotation_clip=False)
+        ax.set_title(f"surface {g.name}: pressure [MPa]\nr [mm] radial, θ [deg] around; "
+                     "hatched: open (no contact)", fontsize=9)
+        fig.colorbar(mesh, ax=ax, shrink=0.7, pad=0.12, label="pressure [MPa]")
+    fig.suptitle(f"{t.case_name}: tilt {t.axis_tilt_deg:g} deg about a pivot {t.tilt_pivot_offset_mm:g} mm from "
+                 f"the face middle, offset {t.radial_offset_mm:g} mm ({t.guidance}, guided at {t.guided_at}); "
+                 f"peak {t.peak_pressure_MPa:.3g} MPa at r = {t.peak_pressure_r_mm:.1f} mm, "
                  f"θ = {t.peak_pressure_theta_deg:.0f} deg", fontsize=9, wrap=True)
     fig.tight_layout()
     fig.savefig(path, dpi=110)

@@ -4,8 +4,12 @@ Archard's law (Archard, J. Appl. Phys. 1953) on the condensed contact of the run
 (clutchfe.fem.wear does the stepping).  The case's [wear] table asks for it and gives the
 duty: engagements x slip speed x slip time (speed falling linearly to zero within each
 engagement, the clamp force constant), or a target wear volume, or neither (wear until
-steady state).  Published wear coefficients scatter widely, so the wear volume and the
-engagement counts are relative; the worn-in pressure and torque do not depend on k.
+steady state).  Steady ("worn in"): the departure of the pack's p r from uniform wear,
+relative to that of uniform pressure (fem.wear.uniform_wear_departure; wear.csv column
+uniform_wear_departure), at or below wear.steady_tolerance; the steady step is the first
+row of wear.csv that meets it.  Published wear coefficients scatter widely, so the wear
+volume and the engagement counts are relative; the worn-in pressure and torque do not
+depend on k.
 """
 from __future__ import annotations
 
@@ -18,7 +22,7 @@ from ...fem.wear import WearPath, wear_in
 
 WEAR_CSV_COLUMNS = ("step", "sliding_rad", "engagements", "wear_volume_mm3", "wear_depth_max_mm",
                     "torque_Nm", "capacity_position", "effective_radius_mm", "peak_pressure_MPa",
-                    "contact_area_fraction", "p_r_change_per_step", "p_r_change_per_approach",
+                    "contact_area_fraction", "p_r_change_per_step", "uniform_wear_departure",
                     "elastic_approach_mm")
 PROFILE_CSV_COLUMNS = ("surface", "r_mm", "z_mm", "tributary_area_mm2", "wear_depth_mm", "lining_left_mm",
                        "pressure_new_MPa", "pressure_worn_MPa")
@@ -57,7 +61,8 @@ def wear_in_case(solved, hand: HandCapacity) -> WearRun:
                    volume_limit_mm3=wear.target_wear_volume, faces_per_interface=faces,
                    gaps=list(solved.gaps), load_scale=solved.load_scale)
     req = case.requirement
-    results = [compare(s.interfaces, hand, req.required_torque, req.service_factor) for s in path.states]
+    results = [compare(s.interfaces, hand, req.required_torque, req.service_factor,
+                       allowable_pressure_MPa=case.lining.allowable_pressure) for s in path.states]
     return WearRun(path, results, per_engagement, faces)
 
 
@@ -75,7 +80,7 @@ def wear_rows(run: WearRun) -> list[dict]:
             "contact_area_fraction": res["contact_area_fraction"],
             # step 0 has no step: blank rather than an infinity
             "p_r_change_per_step": state.step_change if k else "",
-            "p_r_change_per_approach": state.change_per_approach if k else "",
+            "uniform_wear_departure": state.departure,
             "elastic_approach_mm": state.elastic_approach_mm,
         })
     return rows
@@ -96,6 +101,7 @@ def wear_summary(run: WearRun, case) -> dict:
         "torque_change_worn_in_percent": 100.0 * (worn["torque_fe_Nm"] / new["torque_fe_Nm"] - 1.0),
         "contact_area_fraction_worn_in": worn["contact_area_fraction"],
         "p_r_spread_worn_in": spread,
+        "uniform_wear_departure_worn_in": last.departure,
         "wear_coefficient_mm3_per_N_m": case.wear.wear_coefficient,
         "wear_volume_mm3": last.wear_volume_mm3,
         "wear_depth_max_mm": max(float(d.max()) for d in last.depth_mm),
@@ -105,6 +111,7 @@ def wear_summary(run: WearRun, case) -> dict:
     }
     if path.steady_step is not None:
         steady = path.states[path.steady_step]
+        out["wear_steady_step"] = path.steady_step
         out["steady_wear_volume_mm3"] = steady.wear_volume_mm3
         out["steady_engagements"] = (steady.sliding_rad / run.rad_per_engagement if run.rad_per_engagement
                                      else None)
@@ -114,11 +121,13 @@ def wear_summary(run: WearRun, case) -> dict:
 
 def _wear_warnings(path, case, worn: dict) -> list[str]:
     warnings = []
+    # worn in: any state of the path met the steady test (the limit state included)
+    worn_in = any(s.departure <= path.steady_tolerance for s in path.states)
     if path.stop_reason == "depth limit":
         warnings.append(f"WARNING: THE LINING IS WORN TO ITS LIMIT ({case.wear.max_wear_depth:g} mm of wear) "
-                        + ("after the interface wore in." if path.converged else
+                        + ("after the interface wore in." if worn_in else
                            "BEFORE THE INTERFACE WORE IN: the worn-in keys describe the lining at its limit."))
-    elif not path.converged:
+    elif not worn_in:
         why = {"sliding": "the engagement duty ended", "volume": "the target wear volume was reached",
                "step limit": f"wear.max_steps = {case.wear.max_steps} steps were used"}[path.stop_reason]
         warnings.append(f"The interface had not worn in when {why}: the worn-in keys describe that state, "

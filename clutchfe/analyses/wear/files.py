@@ -149,6 +149,8 @@ def wear_table(summary: dict):
     table.add_row(escape("peak pressure [MPa]"), f"{summary['peak_pressure_MPa']:.4f}",
                   f"{summary['peak_pressure_worn_in_MPa']:.4f}")
     table.caption = (f"{summary['wear_steps']} wear steps, stop: {summary['wear_stop_reason']}, "
-                     f"converged: {summary['worn_in_converged']}, wear volume {summary['wear_volume_mm3']:.4g} mm³, "
+                     f"converged: {summary['worn_in_converged']} (departure from uniform wear "
+                     f"{summary.get('uniform_wear_departure_worn_in', float('nan')):.2g}), "
+                     f"wear volume {summary['wear_volume_mm3']:.4g} mm³, "
                      f"deepest wear {1000 * summary['wear_depth_max_mm']:.4g} µm")
     return table
