@@ -37,7 +37,9 @@ OUTPUTS = {
     "contact_area_fraction": "share of the friction face in contact",
     "capacity_margin_fe": "FE capacity over required torque x service factor, minus 1",
     "design_torque_Nm": "required torque x service factor",
-    "peak_pressure_over_allowable": "peak pressure / lining allowable pressure",
+    "peak_pressure_over_allowable": "nodal (edge) peak pressure / lining allowable pressure, for information",
+    "design_peak_pressure_MPa": "design peak pressure: the highest mean over a band of 10 % of the face width",
+    "design_peak_over_allowable": "design peak pressure / lining allowable pressure (the allowable criterion)",
     "engagement_force_N": "axial force to push the cone home",
     # the analyses a base case asks for run on every sample (blank where they do not apply)
     "torque_worn_in_Nm": "FE torque capacity after the wear-in ([wear] in the base case)",
