@@ -123,7 +123,7 @@ def gather_evidence(result: CaseResult, service: SolveService, progress=None) ->
     """The mesh study of the run's case (unless switched off) and the stored verification table
     (read, never run here: ``clutchfe verify`` makes it once per installed version and code hash)."""
     step = progress or (lambda description: None)
-    step("mesh study (two coarser meshes)")
+    step("mesh study (two finer meshes)")
     study = _mesh_study_or_reason(result, service)
     step("verification table")
     rows, passed = load_table()
@@ -175,16 +175,23 @@ def mesh_case(case: Case, section, folder: Path, console) -> None:
 
 
 class _Steps:
-    """The progress bar of one run, naming each step."""
+    """The progress bar of one run, naming each step; ``listener`` (if any) hears each step too."""
 
-    def __init__(self, progress: Progress, total: int):
+    def __init__(self, progress: Progress, total: int, listener=None):
         self.progress, self.task = progress, progress.add_task("meshing the section", total=total)
+        self.listener = listener
+        self.say("meshing the section")
+
+    def say(self, description: str) -> None:
+        if self.listener is not None:
+            self.listener(description)
 
     def __call__(self, description: str) -> None:
         self.progress.update(self.task, advance=1, description=description)
+        self.say(description)
 
 
-def run_case(case: Case, folder: Path, console, service: SolveService | None = None) -> dict:
+def run_case(case: Case, folder: Path, console, service: SolveService | None = None, on_step=None) -> dict:
     """The whole run of one case: analyse, gather the evidence, write the results folder.
 
     Parameters
@@ -196,6 +203,10 @@ def run_case(case: Case, folder: Path, console, service: SolveService | None = N
         with :class:`OutputFolderError`); replaced in one rename when everything is written.
     console : rich.console.Console
         Where the progress bar and the result table go.
+    service : SolveService, optional
+        The solve service (a new one by default).
+    on_step : callable, optional
+        Called with the name of each step as it starts (meshing, solving, mesh study, …).
 
     Returns
     -------
@@ -204,7 +215,7 @@ def run_case(case: Case, folder: Path, console, service: SolveService | None = N
     """
     service = service if service is not None else SolveService()
     with Progress(transient=True, console=console) as progress:
-        step = _Steps(progress, total=8)
+        step = _Steps(progress, total=8, listener=on_step)
         service.prepare(case)
         result = analyse(case, service, progress=step)
         evidence = gather_evidence(result, service, progress=step)
