@@ -1,9 +1,12 @@
 """HTML pieces of report.html: one self-contained page, pictures as data URIs, no script.
 
-Every number that comes from summary.json is written as
-``<span class="num" data-key="dotted.key" data-value="repr" data-scale="100">text</span>`` so a
-test (or a reviewer's script) can check the page against summary.json.  Everything a user typed
-goes through :func:`esc`.
+The page and every section are jinja2 templates in ``templates/`` (``page.html`` the page with
+its Content-Security-Policy and style, ``report.html`` the layout, one template per section,
+``macros.html`` the table and picture), rendered by :func:`render` with autoescape on and
+undefined names an error.  Every number that comes from summary.json is written by :func:`num` as
+``<span class="num" data-key="dotted.key" data-value="repr" data-scale="100">text</span>`` (markup,
+so autoescape leaves it alone) so a test (or a reviewer's script) can check the page against
+summary.json.  Everything a user typed is escaped by autoescape.
 """
 from __future__ import annotations
 
@@ -12,66 +15,82 @@ import html
 import math
 from pathlib import Path
 
-# No network, no script: the browser itself refuses anything but inline styles and data: pictures.
-CSP = "default-src 'none'; img-src data:; style-src 'unsafe-inline'"
+from jinja2 import Environment, FileSystemLoader, StrictUndefined
+from markupsafe import Markup
 
-STYLE = """
-body { font-family: sans-serif; margin: 2em auto; max-width: 62em; color: #1d232a; line-height: 1.4; }
-h1 { font-size: 1.5em; border-bottom: 3px solid #2a5d84; padding-bottom: .2em; }
-h2 { font-size: 1.15em; margin-top: 1.8em; color: #2a5d84; }
-table { border-collapse: collapse; margin: .6em 0; font-size: .92em; }
-th, td { border: 1px solid #c5ccd3; padding: .25em .55em; vertical-align: top; }
-th { background: #edf1f5; text-align: left; }
-td.n { text-align: right; font-variant-numeric: tabular-nums; }
-.caution { border: 2px solid #b3261e; background: #fdf0ef; padding: .6em 1em; font-weight: bold; }
-.verdict { background: #eef5ec; border-left: 5px solid #3c7a35; padding: .5em 1em; }
-.bad { color: #b3261e; font-weight: bold; }
-.warn { background: #fff6e0; border-left: 5px solid #c98a00; padding: .4em 1em; }
-figure { margin: 1em 0; }
-figure img { max-width: 100%; border: 1px solid #c5ccd3; }
-figcaption { font-size: .9em; color: #4a545e; }
-.small { font-size: .85em; color: #4a545e; }
-"""
+TEMPLATES = Path(__file__).resolve().parent / "templates"
+
+# No network, no script: the browser itself refuses anything but inline styles and data: pictures
+# (the meta tag itself is written in templates/page.html; tests/test_library_parity.py checks
+# that the page carries this policy).
+CSP = "default-src 'none'; img-src data:; style-src 'unsafe-inline'"
 
 
 def esc(value) -> str:
     return html.escape(str(value), quote=True)
 
 
-def num(key: str, value, digits: int = 4, scale: float = 1.0, signed: bool = False) -> str:
-    """A number from summary.json, shown with ``digits`` decimals after multiplying by ``scale``."""
+def _finalize(value):
+    """Every ``{{ … }}`` of a template: markup (num, sig, macros) as it is, anything else escaped
+    with :func:`esc`'s entities (``&#x27;`` for a quote, as the page always wrote it; autoescape
+    would write ``&#39;``), so the page's text reads exactly as before the templates."""
+    return value if hasattr(value, "__html__") else Markup(esc(value))
+
+
+ENV = Environment(loader=FileSystemLoader(TEMPLATES), autoescape=True, undefined=StrictUndefined,
+                  finalize=_finalize, trim_blocks=True, lstrip_blocks=True, keep_trailing_newline=True)
+
+
+def render(template: str, **context) -> Markup:
+    """A template of ``templates/`` rendered with ``context`` (markup: a section of the page)."""
+    return Markup(ENV.get_template(template).render(**context))
+
+
+def data_uri(path: Path) -> str | None:
+    """A PNG of the results folder as a data: URI; None when the run did not write it."""
+    path = Path(path)
+    if not path.exists():
+        return None
+    return "data:image/png;base64," + base64.b64encode(path.read_bytes()).decode("ascii")
+
+
+def num(key: str, value, digits: int = 4, scale: float = 1.0, signed: bool = False) -> Markup:
+    """A number from summary.json, shown with ``digits`` decimals after multiplying by ``scale``
+    (markup: a span carrying the key and the exact value)."""
+    key = str(key)
     if value is None or isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
-        return f'<span class="num-missing" data-key="{esc(key)}">—</span>'
+        return Markup(f'<span class="num-missing" data-key="{esc(key)}">—</span>')
     shown = f"{value * scale:+.{digits}f}" if signed else f"{value * scale:.{digits}f}"
     scale_attr = f' data-scale="{scale:g}"' if scale != 1.0 else ""
-    return f'<span class="num" data-key="{esc(key)}" data-value="{value!r}"{scale_attr}>{shown}</span>'
+    return Markup(f'<span class="num" data-key="{esc(key)}" data-value="{value!r}"{scale_attr}>{shown}</span>')
 
 
-def sig(value, digits: int = 4) -> str:
+def sig(value, digits: int = 4) -> Markup:
     """A number not taken from summary.json (verification rows), in significant digits."""
     if value is None or not math.isfinite(value):
-        return "—"
-    return esc(f"{value:.{digits}g}")
+        return Markup("—")
+    return Markup(esc(f"{value:.{digits}g}"))
 
 
 def table(header: list[str], rows: list[list[str]], numeric_from: int = 1) -> str:
-    """Cells are HTML already (escaped by the caller); columns from ``numeric_from`` on align right."""
-    head = "".join(f"<th>{h}</th>" for h in header)
-    body = "".join("<tr>" + "".join(f'<td class="n">{c}</td>' if k >= numeric_from else f"<td>{c}</td>"
-                                    for k, c in enumerate(row)) + "</tr>" for row in rows)
-    return f"<table><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>"
+    """For callers that build HTML strings themselves (cells and headers are HTML already, escaped
+    by the caller): the table of templates/macros.html as a plain string (a plain string added to
+    markup would be escaped).  Templates call the macro directly."""
+    macro = ENV.get_template("macros.html").module.table
+    return str.__str__(macro([Markup(h) for h in header], [[Markup(c) for c in row] for row in rows], numeric_from))
 
 
 def picture(path: Path, alt: str, caption: str) -> str:
-    if not path.exists():
-        return f'<p class="warn">{esc(path.name)} was not written by this run.</p>'
-    data = base64.b64encode(path.read_bytes()).decode("ascii")
-    return (f'<figure><img src="data:image/png;base64,{data}" alt="{esc(alt)}">'
-            f"<figcaption>{caption}</figcaption></figure>")
+    """For callers that build HTML strings themselves (``caption`` is HTML already): the picture
+    of templates/macros.html as a plain string.  Templates call the macro directly."""
+    macro = ENV.get_template("macros.html").module.picture
+    return str.__str__(macro(data_uri(path), Path(path).name, alt, caller=lambda: Markup(caption)))
 
 
 def page(title: str, body: str) -> str:
-    return ("<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
-            f'<meta http-equiv="Content-Security-Policy" content="{CSP}">'
-            '<meta name="viewport" content="width=device-width, initial-scale=1">'
-            f"<title>{esc(title)}</title><style>{STYLE}</style></head>\n<body>\n{body}\n</body></html>\n")
+    """The whole page (templates/page.html) around ``body``, HTML already (escaped by the caller)."""
+    return ENV.get_template("page.html").render(title=title, body=Markup(body))
+
+
+# what every template may call
+ENV.globals.update(num=num, sig=sig, data_uri=data_uri)

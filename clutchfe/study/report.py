@@ -24,14 +24,12 @@ QUANTILES = (0.05, 0.5, 0.95)
 
 
 def wilson_interval(k: int, n: int, confidence: float = CONFIDENCE) -> tuple[float, float]:
-    """Score interval for a binomial proportion (Wilson 1927, JASA 22:209): sound at k = 0 or k = n."""
+    """Score interval for a binomial proportion (Wilson 1927, JASA 22:209): sound at k = 0 or k = n.
+    scipy.stats.binomtest(k, n).proportion_ci(method="wilson"), two-sided."""
     if n == 0:
         raise ValueError("no samples")
-    z = stats.norm.ppf(0.5 + confidence / 2.0)
-    p = k / n
-    centre = (p + z * z / (2 * n)) / (1 + z * z / n)
-    half = z / (1 + z * z / n) * math.sqrt(p * (1 - p) / n + z * z / (4 * n * n))
-    return max(0.0, centre - half), min(1.0, centre + half)
+    ci = stats.binomtest(k, n).proportion_ci(confidence_level=confidence, method="wilson")
+    return float(ci.low), float(ci.high)
 
 
 def table_rows(study: Study, rows: list[dict]) -> tuple[list[str], list[dict]]:

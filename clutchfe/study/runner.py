@@ -165,21 +165,30 @@ def _dispatch(study: Study, jobs: list, inputs: dict, store: SampleStore, worker
 
 
 class _bar:
-    """Progress bar: done, failed, remaining and the rate of this run."""
+    """Progress bar: done, failed, remaining and the rate of this run.  On a console that is not a
+    terminal (output piped or redirected, where rich draws no bar) one plain line per finished chunk."""
 
     def __init__(self, console: Console, total: int):
         self.total, self.done, self.failed = total, 0, 0
-        self.progress = Progress(TextColumn("study"), BarColumn(), TextColumn("{task.fields[counts]}"),
-                                 TimeElapsedColumn(), console=console, transient=False)
+        self.console, self.plain = console, not console.is_terminal
+        self.progress = None if self.plain else Progress(
+            TextColumn("study"), BarColumn(), TextColumn("{task.fields[counts]}"), TimeElapsedColumn(),
+            console=console, transient=False)
         self.start = time.perf_counter()
 
     def __enter__(self):
+        if self.plain:
+            self._line(f"{self.total} samples to solve")
+            return self
         self.progress.__enter__()
         self.task = self.progress.add_task("samples", total=max(self.total, 1), counts=self._counts())
         return self
 
     def __exit__(self, *exc):
-        return self.progress.__exit__(*exc)
+        return False if self.plain else self.progress.__exit__(*exc)
+
+    def _line(self, text: str) -> None:
+        self.console.print(f"clutchfe: study: {text}", markup=False, highlight=False, soft_wrap=True)
 
     def _counts(self) -> str:
         rate = (self.done + self.failed) / max(time.perf_counter() - self.start, 1e-9)
@@ -189,4 +198,7 @@ class _bar:
     def advance(self, records: list[dict]) -> None:
         self.failed += sum(r["status"] == "failed" for r in records)
         self.done += sum(r["status"] == "done" for r in records)
+        if self.plain:
+            self._line(self._counts())
+            return
         self.progress.update(self.task, advance=len(records), counts=self._counts())

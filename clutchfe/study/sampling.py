@@ -10,6 +10,7 @@ import itertools
 
 import numpy as np
 from scipy import stats
+from scipy.stats import qmc
 
 from .spec import Distribution, Study
 
@@ -18,14 +19,14 @@ _EDGE = 1e-12
 
 
 def unit_draws(n: int, dims: int, method: str, seed: int) -> np.ndarray:
-    """(n, dims) numbers in (0, 1): plain Monte Carlo or Latin hypercube (one draw per stratum)."""
+    """(n, dims) numbers in (0, 1): plain Monte Carlo or Latin hypercube (one draw per stratum,
+    uniform within it: scipy.stats.qmc.LatinHypercube with scramble=True)."""
     rng = np.random.Generator(np.random.PCG64(seed))
     if method == "monte_carlo":
         u = rng.random((n, dims))
     else:
-        u = np.empty((n, dims))
-        for d in range(dims):
-            u[:, d] = (rng.permutation(n) + rng.random(n)) / n
+        # `seed=` (not `rng=`, SciPy >= 1.15 only): the keyword every SciPy this package allows knows
+        u = qmc.LatinHypercube(d=dims, scramble=True, seed=rng).random(n)
     return np.clip(u, _EDGE, 1.0 - _EDGE)
 
 

@@ -52,6 +52,53 @@ CORE_OUTPUTS = ("torque_fe_Nm", "capacity_position", "peak_pressure_MPa", "effec
 TOP_KEYS = ("name", "description", "base_case", "method", "samples", "seed", "outputs", "vary", "limit")
 MAX_SAMPLES = 1_000_000
 
+# The study-file reference (`clutchfe keys` prints it): one meaning per key, next to the keys the
+# loader accepts, so the two cannot drift (tests/test_cli.py checks that they match).
+TOP_KEY_MEANINGS = {
+    "name": "study name, used for the results folder (default: the file name without .study.toml)",
+    "description": "free text shown in the study's results",
+    "base_case": "required: the case file whose keys are varied, relative to the study file",
+    "method": "sampling of the distributions: \"latin_hypercube\" (default) or \"monte_carlo\"",
+    "samples": "draws per grid point; required with distributions, not allowed without "
+               f"(a whole number 2 … {MAX_SAMPLES})",
+    "seed": "seed of the random draws (a whole number ≥ 0; default 0): the same seed, the same samples",
+    "outputs": "extra output columns besides " + ", ".join(CORE_OUTPUTS) + "; allowed: " + ", ".join(OUTPUTS),
+    "vary": "required: one [[vary]] table per case key to vary (keys below)",
+    "limit": "optional [limit] table: scan and bisect one case key for the value where the criterion "
+             "stops being met (keys below)",
+}
+VARY_KEY_MEANINGS = {
+    "key": "required: the numeric case key to vary, \"table.key\" (see the case-file keys)",
+    "values": "a sweep: the list of values to solve",
+    "start": "a sweep from start …",
+    "stop": "… to stop (both included) …",
+    "steps": "… in this many values (a whole number 2 … 10000)",
+    "spacing": "spacing of start … stop: \"linear\" (default) or \"log\"",
+    "distribution": "a tolerance instead of a sweep: one of "
+                    + ", ".join(f"{name} ({', '.join(params)})" for name, params in DISTRIBUTIONS.items()),
+    "mean": "mean of the distribution (of the quantity itself for lognormal)",
+    "std_dev": "standard deviation of the distribution, > 0 (of the quantity itself for lognormal)",
+    "low": "lower bound: uniform, or where a truncated normal is cut",
+    "high": "upper bound: uniform, or where a truncated normal is cut",
+}
+LIMIT_KEYS = ("key", "low", "high", "criterion", "steps")
+LIMIT_KEY_MEANINGS = {
+    "key": "required: the numeric case key whose limit is sought (of the base case's kind)",
+    "low": "required: lower end of the range searched",
+    "high": "required: upper end of the range searched",
+    "criterion": "what must hold: " + " or ".join(f"\"{c}\"" for c in CRITERIA)
+                 + " (default \"required_torque\"; the base case must give that requirement)",
+    "steps": "scan points before the bisection (a whole number 2 … 200; default 9)",
+}
+
+
+def study_reference_markdown() -> str:
+    """The study-file reference as a Markdown table (printed by `clutchfe keys`)."""
+    lines = ["| key | meaning |", "|---|---|"]
+    for prefix, table in (("", TOP_KEY_MEANINGS), ("vary.", VARY_KEY_MEANINGS), ("limit.", LIMIT_KEY_MEANINGS)):
+        lines += [f"| `{prefix}{key}` | {meaning} |" for key, meaning in table.items()]
+    return "\n".join(lines)
+
 
 @dataclass(frozen=True)
 class Grid:
@@ -341,8 +388,8 @@ def _limit(entry, base: Case | None, problems: list[str]) -> Limit | None:
     if not isinstance(entry, dict):
         problems.append("[limit]: must be a table with key, low, high and criterion")
         return None
-    for extra in sorted(set(entry) - {"key", "low", "high", "criterion", "steps"}):
-        problems.append(f"limit.{extra}: unknown; allowed: key, low, high, criterion, steps")
+    for extra in sorted(set(entry) - set(LIMIT_KEYS)):
+        problems.append(f"limit.{extra}: unknown; allowed: {', '.join(LIMIT_KEYS)}")
     full = entry.get("key")
     spec = case_key(full) if isinstance(full, str) else None
     ignored = full.endswith("_stiffness") and base is not None and base.support.type != "springs" \
