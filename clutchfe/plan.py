@@ -123,7 +123,7 @@ def gather_evidence(result: CaseResult, service: SolveService, progress=None) ->
     """The mesh study of the run's case (unless switched off) and the stored verification table
     (read, never run here: ``clutchfe verify`` makes it once per installed version and code hash)."""
     step = progress or (lambda description: None)
-    step("mesh study (two finer meshes)")
+    step("mesh study (two finer meshes)" if result.case.verification.mesh_study else "mesh study (switched off)")
     study = _mesh_study_or_reason(result, service)
     step("verification table")
     rows, passed = load_table()

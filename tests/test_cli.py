@@ -26,16 +26,10 @@ from clutchfe.study import runner
 from clutchfe.study.spec import (DISTRIBUTIONS, GRID_KEYS, LIMIT_KEY_MEANINGS, LIMIT_KEYS, TOP_KEY_MEANINGS,
                                  TOP_KEYS, VARY_KEY_MEANINGS)
 
-from tests.helpers.data import write_toml
+from tests.helpers.data import SMALL_PLATE, write_toml
 
 ANSI = re.compile(r"\x1b\[")
-SMALL = {
-    "kind": "plate",
-    "interface": {"inner_radius": 50.0, "outer_radius": 75.0, "friction_coefficient": 0.3, "friction_surfaces": 2},
-    "load": {"axial_force": 3000.0},
-    "mesh": {"interface_element_size": 2.0, "element_size": 8.0, "edge_element_size": 0.8},
-    "verification": {"mesh_study": False},
-}
+SMALL = SMALL_PLATE
 # the steps of a run, as run_case names them (plan.py), in order
 STEPS = ("meshing the section", "solving the contact", "mesh study", "verification table", "pictures and files",
          "report")

@@ -18,7 +18,7 @@ from rich.console import Console
 from clutchfe.study import read_store, run_study
 
 from tests.helpers.data import CONE
-from tests.helpers.processes import read_until, wait_until
+from tests.helpers.processes import read_until, stop_study
 
 SMALL_PLATE = {
     "kind": "plate", "name": "small_plate",
@@ -112,14 +112,6 @@ def test_a_first_run_killed_leaves_no_folder(previous, tmp_path, step):
 STIFF_STUDY = {"name": "stiff", "base_case": "base.toml",
                "vary": [{"key": "support.axial_stiffness", "start": 5.0e3, "stop": 5.0e6, "steps": 16,
                          "spacing": "log"}]}
-STUDY_CHILD = "import sys; from clutchfe.study import run_study; run_study(sys.argv[1], workers=1, out=sys.argv[2])"
-
-
-def _stored(folder: Path) -> int:
-    try:
-        return len(read_store(folder / "samples.sqlite"))
-    except Exception:  # noqa: BLE001 - not created yet
-        return 0
 
 
 def _table(folder: Path) -> list[dict]:
@@ -144,19 +136,7 @@ def stiff_study(tmp_path_factory):
 def test_a_study_stopped_at_any_point_then_rerun_has_every_sample_once(stiff_study, tmp_path, sig, after):
     path, reference = stiff_study
     out = tmp_path / "res"
-    with open(tmp_path / "child.err", "wb") as err:
-        proc = subprocess.Popen([sys.executable, "-c", STUDY_CHILD, str(path), str(out)],
-                                stdout=subprocess.DEVNULL, stderr=err)
-    try:
-        wait_until(lambda: _stored(out) >= after, f"{after} stored samples", needs=[proc],
-                   detail=lambda: (tmp_path / "child.err").read_text(errors="replace")[-2000:])
-        proc.send_signal(sig)
-        proc.wait()
-    finally:
-        if proc.poll() is None:
-            proc.kill()
-            proc.wait()
-    kept = _stored(out)
+    kept = stop_study(path, out, sig, after, tmp_path / "child.err")
     assert after <= kept <= 16
     summary = run_study(path, workers=1, console=Console(file=open("/dev/null", "w")), out=out)
     assert summary["run"]["resumed_with"] == kept

@@ -13,7 +13,6 @@ import signal
 import subprocess
 import sys
 import threading
-import time
 from pathlib import Path
 
 import numpy as np
@@ -30,6 +29,7 @@ from clutchfe.study.sampling import frozen
 from clutchfe.study.spec import Distribution
 
 from tests.helpers.data import write_toml
+from tests.helpers.processes import ended, stop_study, stored_samples, wait_until
 
 COARSE = {"interface_element_size": 1.5, "element_size": 8.0, "edge_element_size": 0.6}
 CONE = {"kind": "cone", "name": "small_cone",
@@ -288,21 +288,6 @@ def test_same_table_with_two_workers(stiffness_reference, tmp_path):
     assert _csv(tmp_path / "res" / "samples.csv") == reference
 
 
-def _ended(p) -> bool:
-    """A subprocess or thread that has finished."""
-    return p.poll() is not None if isinstance(p, subprocess.Popen) else not p.is_alive()
-
-
-def _wait_until(predicate, what: str, needs=(), detail=lambda: ""):
-    """Poll until predicate() holds, with no deadline: a slow machine only waits longer.  Fails at
-    once when a process or thread in ``needs`` ends first, so a crash cannot leave the test hanging."""
-    while not predicate():
-        gone = [p for p in needs if _ended(p)]
-        if gone and not predicate():
-            raise AssertionError(f"waiting for {what}: {gone[0]} ended first {detail()}")
-        time.sleep(0.05)        # polling interval, not a limit
-
-
 class _StudyThread(threading.Thread):
     """run_study in the background, keeping its summary or its exception."""
 
@@ -318,13 +303,6 @@ class _StudyThread(threading.Thread):
 
     def __repr__(self):
         return f"run_study (error: {self.error!r})"
-
-
-def _stored(folder: Path) -> int:
-    try:
-        return len(read_store(folder / "samples.sqlite"))
-    except Exception:  # noqa: BLE001 - not created yet
-        return 0
 
 
 def _scheduler_address(sched_file: Path):
@@ -347,7 +325,7 @@ def test_killed_worker_on_a_real_scheduler_loses_nothing(stiffness_reference, tm
                                       "127.0.0.1", "--port", "0", "--no-dashboard", "--scheduler-file",
                                       str(sched_file)], stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
         procs.append(scheduler)
-        _wait_until(lambda: _scheduler_address(sched_file), "the scheduler file", needs=[scheduler])
+        wait_until(lambda: _scheduler_address(sched_file), "the scheduler file", needs=[scheduler])
         address = _scheduler_address(sched_file)
         for _ in range(2):
             procs.append(subprocess.Popen([sys.executable, "-m", "distributed.cli.dask_worker", address,
@@ -358,20 +336,20 @@ def test_killed_worker_on_a_real_scheduler_loses_nothing(stiffness_reference, tm
             try:
                 client = Client(address)
             except (OSError, TimeoutError):
-                assert not _ended(scheduler), "the scheduler ended before a client could connect"
+                assert not ended(scheduler), "the scheduler ended before a client could connect"
         with client:
-            _wait_until(lambda: len(client.scheduler_info()["workers"]) >= 2, "two workers", needs=procs)
+            wait_until(lambda: len(client.scheduler_info()["workers"]) >= 2, "two workers", needs=procs)
         out = tmp_path / "res"
         runner = _StudyThread(path, scheduler=address, console=QUIET, out=out)
         runner.start()
-        _wait_until(lambda: _stored(out) >= 2, "the first samples", needs=[runner, *procs])
+        wait_until(lambda: stored_samples(out) >= 2, "the first samples", needs=[runner, *procs])
         procs[1].send_signal(signal.SIGKILL)
-        killed_at = _stored(out)
+        killed_at = stored_samples(out)
         # the study ends once the survivor has taken over the lost work; it could not without the
         # scheduler or that worker, so the wait fails instead of hanging if either of them ends
         while runner.is_alive():
             runner.join(timeout=0.5)            # polling interval, not a limit
-            assert not runner.is_alive() or not (_ended(procs[0]) or _ended(procs[2])), \
+            assert not runner.is_alive() or not (ended(procs[0]) or ended(procs[2])), \
                 "the scheduler or the surviving worker ended during the study"
         if runner.error is not None:
             raise runner.error
@@ -390,20 +368,7 @@ def test_killed_worker_on_a_real_scheduler_loses_nothing(stiffness_reference, tm
 def test_interrupted_study_continues_without_loss_or_repeat(stiffness_reference, tmp_path):
     path, reference = stiffness_reference
     out = tmp_path / "res"
-    code = f"from clutchfe.study import run_study; run_study({str(path)!r}, workers=1, out={str(out)!r})"
-    # stderr to a file, not a pipe nobody reads while waiting: a full pipe would stall the child
-    with open(tmp_path / "child.err", "wb") as err:
-        proc = subprocess.Popen([sys.executable, "-c", code], stdout=subprocess.DEVNULL, stderr=err)
-    try:
-        _wait_until(lambda: _stored(out) >= 3, "the first samples", needs=[proc],
-                    detail=lambda: (tmp_path / "child.err").read_text(errors="replace")[-2000:])
-        proc.send_signal(signal.SIGINT)              # Ctrl-C
-        proc.wait()
-    finally:
-        if proc.poll() is None:
-            proc.kill()
-            proc.wait()
-    kept = _stored(out)
+    kept = stop_study(path, out, signal.SIGINT, 3, tmp_path / "child.err")       # Ctrl-C
     assert 3 <= kept < 16, "the interrupt came too late to test a restart"
     summary = run_study(path, workers=1, console=QUIET, out=out)
     assert summary["run"]["resumed_with"] == kept

@@ -18,19 +18,12 @@ from clutchfe.readme import readme_section
 from clutchfe.summary_keys import (BY_KEY, MARKERS, OPTIONAL_STAGES, STAGES, SUMMARY_KEYS,
                                    reference_markdown)
 
-from tests.helpers.data import ROOT, with_tables
+from tests.helpers.data import ROOT, SMALL_PLATE, with_tables
 
 # the unit each name ending stands for (longest ending first: _mm3 before _mm, _Nm before _N)
 NAME_UNITS = (("_mm3_per_N_m", "mm³/(N·m)"), ("_mm3", "mm³"), ("_mm", "mm"), ("_Nm", "N·m"), ("_N", "N"),
               ("_MPa", "MPa"), ("_deg", "deg"), ("_percent", "%"), ("_rad", "rad"), ("_seconds", "s"))
 
-SMALL_PLATE = {
-    "kind": "plate",
-    "interface": {"inner_radius": 50.0, "outer_radius": 75.0, "friction_coefficient": 0.3, "friction_surfaces": 2},
-    "load": {"axial_force": 3000.0},
-    "mesh": {"interface_element_size": 2.0, "element_size": 8.0, "edge_element_size": 0.8},
-    "verification": {"mesh_study": False},
-}
 CASES = {
     "plain": SMALL_PLATE,
     # no duty: wear until p·r is steady; a large step cap gets there in a few steps

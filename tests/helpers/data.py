@@ -25,5 +25,15 @@ def write_toml(path: Path, data: dict) -> Path:
     path.write_text(tomli_w.dumps(data), encoding="utf-8")
     return path
 
+# a small plate on a coarse mesh, no mesh study: a whole run in about a second (tests of the stages
+# around the solve, not of its accuracy)
+SMALL_PLATE = {
+    "kind": "plate",
+    "interface": {"inner_radius": 50.0, "outer_radius": 75.0, "friction_coefficient": 0.3, "friction_surfaces": 2},
+    "load": {"axial_force": 3000.0},
+    "mesh": {"interface_element_size": 2.0, "element_size": 8.0, "edge_element_size": 0.8},
+    "verification": {"mesh_study": False},
+}
 
-__all__ = ["CASES", "CONE", "PLATE", "ROOT", "with_tables", "write_toml"]
+
+__all__ = ["CASES", "CONE", "PLATE", "ROOT", "SMALL_PLATE", "with_tables", "write_toml"]
