@@ -9,14 +9,15 @@ import copy
 import difflib
 import hashlib
 import math
-import tomllib
-from dataclasses import dataclass, make_dataclass, field
+from dataclasses import dataclass, field, make_dataclass, replace
 from pathlib import Path
 from typing import Any
 
+from .case_checks import BASE, RELATIONS, CaseValues, run_checks
 from .errors import CaseError
 from .names import label_problem, safe_label
 from .schema import SCHEMA, Key, describe_range
+from .toml_input import MAX_KEYS, _key_count, read_toml, shown
 
 
 def _table_class(table: str):
@@ -95,7 +96,7 @@ def load_case(path: str | Path) -> Case:
     Parameters
     ----------
     path : str or Path
-        The case file.
+        The case file (a regular file of at most 1 MiB, UTF-8 with or without a byte-order mark).
 
     Returns
     -------
@@ -113,22 +114,17 @@ def load_case(path: str | Path) -> Case:
     >>> case = load_case("cases/plate_tractor.toml")      # doctest: +SKIP
     """
     path = Path(path)
-    try:
-        raw = path.read_bytes()
-    except OSError as exc:
-        raise CaseError([f"{path}: cannot read the case file ({exc.strerror})"]) from None
-    try:
-        data = tomllib.loads(raw.decode("utf-8"))
-    except UnicodeDecodeError:
-        raise CaseError([f"{path}: not a UTF-8 text file"]) from None
-    except tomllib.TOMLDecodeError as exc:
-        raise CaseError([f"{path}: malformed TOML: {exc}"]) from None
+    data, raw = read_toml(path, "case file")
     return case_from_dict(data, default_name=safe_label(path.stem), sha256=hashlib.sha256(raw).hexdigest(),
                           source=str(path))
 
 
-def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", source: str = "") -> Case:
+def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", source: str = "",
+                   limit_case: bool = False) -> Case:
     """Validate and default a case given as nested tables (the parsed TOML of a case file).
+
+    Every problem of the case is reported at once: each key's type and range, then the
+    relations between the keys whose own values are valid.
 
     Parameters
     ----------
@@ -136,6 +132,10 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
         ``{"kind": ..., "interface": {...}, "load": {...}, ...}`` as in a case file.
     default_name : str
         The case name when ``data`` has none (it names the results folder).
+    limit_case : bool
+        True for a limit case of the physics rather than a clutch (the verification suite's
+        near-rigid bodies): the moduli may then take any value > 0 instead of the plausible
+        range.  A case file never is one.
 
     Raises
     ------
@@ -150,27 +150,39 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
     >>> case.interface.semi_cone_angle, case.support.type
     (90.0, 'rigid')
     """
+    if not isinstance(data, dict):
+        raise CaseError([f"case: {shown(data)}: allowed: tables of keys (a parsed case file)"])
+    count = _key_count(data)
+    if count > MAX_KEYS:
+        raise CaseError([f"case: holds {count} keys; allowed: at most {MAX_KEYS} (clutchfe keys lists them)"])
     problems: list[str] = []
     flat = _flatten(data, problems)
     kind = flat.get("kind")
     if kind not in ("cone", "plate"):
-        problems.append(f"kind = {kind!r}: allowed: 'cone' or 'plate'" if kind is not None
+        problems.append(f"kind = {shown(kind)}: allowed: 'cone' or 'plate'" if kind is not None
                         else "kind: missing; allowed: 'cone' or 'plate'")
-        raise CaseError(problems)
-    unknown = len(problems)
-    values = _typed_values(flat, kind, problems)
-    if len(problems) > unknown:             # relations between keys need every value valid
-        raise CaseError(problems)
-    _fill_defaults(values, kind, problems)   # unknown keys are left out, the rest is still checked
-    if len(problems) > unknown:
-        raise CaseError(problems)
+        kind = None
     given = frozenset(k for k, v in data.items() if isinstance(v, dict))
-    warnings = _cross_checks(values, kind, problems, given)
-    name = values["name"] if "name" in values else default_name
-    # the name becomes the results folder: a case file must not be able to point it elsewhere
-    bad_name = label_problem("name", name)
-    if bad_name:
-        problems.append(bad_name)
+    values, invalid = _typed_values(flat, kind, problems, limit_case)
+    name = values.get("name", default_name)
+    if "name" not in invalid:
+        # the name becomes the results folder: a case file must not be able to point it elsewhere
+        bad_name = label_problem("name", name)
+        if bad_name:
+            problems.append(bad_name)
+    warnings: list[str] = []
+    if kind is not None:
+        values = CaseValues(values, invalid=invalid, tables_given=given)
+        derived = _fill_defaults(values, kind, problems)
+        base_problems = len(problems)
+        run_checks(BASE, values, kind, problems, warnings)
+        if len(problems) > base_problems:
+            # a default computed from a wrong radius or angle would be reported against a key the user
+            # never set, and a relation with the wrong radii would give a range made of wrong numbers:
+            # check the other given values only
+            for full in (*derived, "interface.inner_radius", "interface.outer_radius"):
+                values.pop(full, None)
+        run_checks(RELATIONS, values, kind, problems, warnings)
     if problems:
         raise CaseError(problems)
     tables = {t: cls(**{k: values.get(f"{t}.{k}") for k in SCHEMA[t]}) for t, cls in _TABLE_CLASSES.items()}
@@ -184,12 +196,12 @@ def _flatten(data: dict, problems: list[str]) -> dict[str, Any]:
     for key, value in data.items():
         if isinstance(value, dict):
             if key not in SCHEMA or not key:
-                problems.append(f"[{key}]: unknown table{_hint(key, tables)}; allowed tables: "
+                problems.append(f"[{shown(key, 40)[1:-1]}]: unknown table{_hint(key, tables)}; allowed tables: "
                                 + ", ".join(tables))
                 continue
             for sub, subval in value.items():
                 if sub not in SCHEMA[key]:
-                    problems.append(f"{key}.{sub}: unknown key{_hint(sub, list(SCHEMA[key]), key)}; "
+                    problems.append(f"{key}.{shown(sub, 40)[1:-1]}: unknown key{_hint(sub, list(SCHEMA[key]), key)}; "
                                     f"allowed in [{key}]: " + ", ".join(SCHEMA[key]))
                     continue
                 flat[f"{key}.{sub}"] = subval
@@ -198,12 +210,14 @@ def _flatten(data: dict, problems: list[str]) -> dict[str, Any]:
         else:
             where = [t for t in tables if key in SCHEMA[t]]
             hint = f" (did you mean [{where[0]}] {key}?)" if where else _hint(key, list(SCHEMA[""]))
-            problems.append(f"{key}: unknown top-level key{hint}; allowed at top level: "
+            problems.append(f"{shown(key, 40)[1:-1]}: unknown top-level key{hint}; allowed at top level: "
                             + ", ".join(SCHEMA[""]))
     return flat
 
 
 def _hint(word: str, options: list[str], table: str = "") -> str:
+    if len(word) > 60:          # no near match is that long; difflib is quadratic in it
+        return ""
     homes = [t for t, keys in SCHEMA.items() if t and t != table and word in keys]
     if table and homes:
         return f" (did you mean {' or '.join(f'{t}.{word}' for t in homes)}?)"
@@ -218,57 +232,83 @@ def _spec(full: str) -> Key:
     return SCHEMA[table][key]
 
 
-def _typed_values(flat: dict, kind: str, problems: list[str]) -> dict[str, Any]:
+def _typed_values(flat: dict, kind: str | None, problems: list[str],
+                  limit_case: bool = False) -> tuple[dict[str, Any], set[str]]:
+    """The keys valid on their own (type, range, case kind), and the set of those given but invalid."""
     values: dict[str, Any] = {}
+    invalid: set[str] = set()
     for full, value in flat.items():
         spec = _spec(full)
-        if kind not in spec.kinds:
+        if limit_case and spec.limit_range:
+            spec = replace(spec, low=spec.limit_range[0], high=spec.limit_range[1], low_inclusive=False,
+                           high_inclusive=False)
+        if kind is not None and kind not in spec.kinds:
             other = "plate" if kind == "cone" else "cone"
-            problems.append(f"{full} = {value!r}: belongs to {other} cases only; this case is kind = {kind!r}")
+            problems.append(f"{full} = {shown(value)}: belongs to {other} cases only; this case is kind = {kind!r}")
+            invalid.add(full)
             continue
         checked = _check_value(full, value, spec, problems)
-        if checked is not None:
+        if checked is None:
+            invalid.add(full)
+        else:
             values[full] = checked
     for table, keys in SCHEMA.items():
         for key, spec in keys.items():
             full = f"{table}.{key}" if table else key
-            if spec.required and kind in spec.kinds and full not in flat:
+            if spec.required and kind is not None and kind in spec.kinds and full not in flat:
                 problems.append(f"{full}: missing; required ({describe_range(spec)})")
-    return values
+                invalid.add(full)
+    if kind == "cone" and "interface.semi_cone_angle" not in flat:
+        problems.append("interface.semi_cone_angle: missing; required for a cone (2 ≤ value ≤ 80 deg)")
+        invalid.add("interface.semi_cone_angle")
+    return values, invalid
 
 
 def _check_value(full: str, value: Any, spec: Key, problems: list[str]):
     allowed = describe_range(spec)
     if spec.kind is str:
         if not isinstance(value, str):
-            problems.append(f"{full} = {value!r}: must be text; allowed: {allowed}")
+            problems.append(f"{full} = {shown(value)}: must be text; allowed: {allowed}")
             return None
     elif spec.kind is bool:
         if not isinstance(value, bool):
-            problems.append(f"{full} = {value!r}: must be true or false")
+            problems.append(f"{full} = {shown(value)}: must be true or false")
             return None
         return value
     elif isinstance(value, bool) or not isinstance(value, (int, float)):
-        problems.append(f"{full} = {value!r}: must be a number; allowed: {allowed}")
+        problems.append(f"{full} = {shown(value)}: must be a number; allowed: {allowed}")
         return None
     elif spec.kind is int:
-        if not (math.isfinite(value) and float(value) == int(value)):
-            problems.append(f"{full} = {value!r}: must be a whole number; allowed: {allowed}")
+        if not (isinstance(value, int) or (math.isfinite(value) and float(value) == int(value))):
+            problems.append(f"{full} = {shown(value)}: must be a whole number; allowed: {allowed}")
             return None
         value = int(value)
     else:
-        value = float(value)
-        if not math.isfinite(value):
-            problems.append(f"{full} = {value!r}: must be a finite number; allowed: {allowed}")
+        try:
+            number = float(value)
+        except OverflowError:               # an integer of hundreds of digits
+            number = math.inf
+        if not math.isfinite(number):
+            problems.append(f"{full} = {shown(value)}: must be a finite number; allowed: {allowed}")
             return None
+        value = number
     if spec.choices and value not in spec.choices:
-        problems.append(f"{full} = {value!r}: not allowed{_hint(str(value), [str(c) for c in spec.choices])}; "
+        problems.append(f"{full} = {shown(value)}: not allowed{_hint(str(value), [str(c) for c in spec.choices])}; "
                         f"allowed: {allowed}")
         return None
     if not _in_range(value, spec):
-        problems.append(f"{full} = {value!r}: out of range; allowed: {allowed}")
+        problems.append(f"{full} = {shown(value)}: out of range; allowed: {allowed}{_unit_hint(value, spec)}")
         return None
     return value
+
+
+def _unit_hint(value, spec: Key) -> str:
+    """A hint when the value would be in range in the unit a user may have typed it in."""
+    for unit, other, factor in (("mm", "m", 1000.0), ("MPa", "GPa", 1000.0)):
+        # only for a value far below the range: 0.1 for a 0.2 mm minimum is a thin part, not metres
+        if spec.unit == unit and 0 < value * 10 < spec.low and _in_range(value * factor, spec):
+            return f" ({spec.unit} expected: {value:g} {other} is {value * factor:g} {unit})"
+    return ""
 
 
 def _in_range(value, spec: Key) -> bool:
@@ -281,209 +321,30 @@ def _in_range(value, spec: Key) -> bool:
     return True
 
 
-def _fill_defaults(values: dict, kind: str, problems: list[str]) -> None:
+def _fill_defaults(values: dict, kind: str, problems: list[str]) -> list[str]:
+    """Fill in every default that can be computed; returns the keys derived from other keys."""
     values["kind"] = kind
+    derived = []
     for table, keys in SCHEMA.items():
         for key, spec in keys.items():
             full = f"{table}.{key}" if table else key
-            if full in values or kind not in spec.kinds:
+            if full in values or full in values.invalid or kind not in spec.kinds:
                 continue
             try:
                 default = spec.default(values) if callable(spec.default) else spec.default
-            except (KeyError, ZeroDivisionError, ValueError):
+            except (KeyError, ZeroDivisionError, ValueError, OverflowError):
                 default = None      # depends on a key that is itself invalid: reported elsewhere
             if default is not None:
                 values[full] = default
-    alpha = values.get("interface.semi_cone_angle")
-    if kind == "cone" and alpha is None:
-        problems.append("interface.semi_cone_angle: missing; required for a cone (0 < value < 90 deg)")
+                if callable(spec.default) and not _kind_only(spec, kind):
+                    derived.append(full)
+    return derived
 
 
-def _cross_checks(v: dict, kind: str, problems: list[str], given: frozenset = frozenset()) -> list[str]:
-    """Checks that relate several keys.  Returns warnings; appends errors."""
-    warnings: list[str] = []
-    r1, r2 = v["interface.inner_radius"], v["interface.outer_radius"]
-    alpha, mu, n = v["interface.semi_cone_angle"], v["interface.friction_coefficient"], \
-        v["interface.friction_surfaces"]
-    t = v["lining.thickness"]
-    if r1 >= r2:
-        problems.append(f"interface.inner_radius = {r1:g}: must be less than interface.outer_radius "
-                        f"= {r2:g} mm; allowed: 0 < inner_radius < {r2:g} mm")
-        return warnings
-    if kind == "cone":
-        if not 0.0 < alpha < 90.0:
-            problems.append(f"interface.semi_cone_angle = {alpha:g}: allowed for a cone: 0 < value < 90 deg")
-            return warnings
-        if n != 1:
-            problems.append(f"interface.friction_surfaces = {n}: a cone clutch has one friction face; allowed: 1")
-        if math.tan(math.radians(alpha)) < mu:
-            warnings.append(f"interface.semi_cone_angle = {alpha:g} deg: tan(alpha) = "
-                            f"{math.tan(math.radians(alpha)):.3f} < friction_coefficient = {mu:g}: the cone "
-                            "self-locks (it needs a pull to disengage)")
-        body, body_key = ("cone.rim_thickness", v["cone.rim_thickness"]) if v["lining.bonded_to"] == "cone" \
-            else ("cup.wall_thickness", v["cup.wall_thickness"])
-        if v["lining.bonded_to"] not in ("cone", "cup"):
-            problems.append(f"lining.bonded_to = {v['lining.bonded_to']!r}: allowed for a cone clutch: "
-                            "'cone' or 'cup'")
-        elif t >= body_key:
-            problems.append(f"lining.thickness = {t:g}: the lining is thicker than its body ({body} = "
-                            f"{body_key:g} mm); allowed: 0 < thickness < {body_key:g} mm")
-        for part in ("cone", "cup"):
-            bore, hub = v[f"{part}.bore_radius"], v[f"{part}.hub_outer_radius"]
-            if bore >= hub:
-                problems.append(f"{part}.bore_radius = {bore:g}: must be less than {part}.hub_outer_radius = "
-                                f"{hub:g} mm; allowed: 0 < bore_radius < {hub:g} mm")
-        mismatch = v["misalignment.cone_angle_mismatch"]
-        if not 0.0 < alpha + mismatch < 90.0:
-            problems.append(f"misalignment.cone_angle_mismatch = {mismatch:g}: the cup angle alpha + mismatch "
-                            f"must stay within (0, 90) deg")
-    else:
-        if alpha != 90.0:
-            problems.append(f"interface.semi_cone_angle = {alpha:g}: a plate clutch's faces are normal to "
-                            "the axis; allowed: 90 (or leave it out)")
-        if n % 2:
-            problems.append(f"interface.friction_surfaces = {n}: a plate clutch has two faces per disc; "
-                            "allowed: an even number 2, 4, 6 …")
-        if v["lining.bonded_to"] not in ("disc", "plates"):
-            problems.append(f"lining.bonded_to = {v['lining.bonded_to']!r}: allowed for a plate clutch: "
-                            "'disc' or 'plates'")
-        plates = ["pressure_plate", "counter_plate"] + (["separator_plate"] if n > 2 else [])
-        for part in plates + ["disc"]:
-            lo_key, hi_key = (("disc.core_inner_radius", "disc.core_outer_radius") if part == "disc"
-                              else (f"{part}.inner_radius", f"{part}.outer_radius"))
-            lo, hi = v[lo_key], v[hi_key]
-            if lo > r1:
-                problems.append(f"{lo_key} = {lo:g}: the friction surface must lie on the part; "
-                                f"allowed: 0 < value ≤ interface.inner_radius = {r1:g} mm")
-            if hi < r2:
-                problems.append(f"{hi_key} = {hi:g}: the friction surface must lie on the part; "
-                                f"allowed: value ≥ interface.outer_radius = {r2:g} mm")
-        if v["lining.bonded_to"] == "disc":
-            carriers = {"disc.core_thickness": v["disc.core_thickness"]}
-        else:
-            carriers = {f"{p}.thickness": v[f"{p}.thickness"] for p in plates}
-        for key, thick in carriers.items():
-            if t >= thick:
-                problems.append(f"lining.thickness = {t:g}: the lining is thicker than its body ({key} = "
-                                f"{thick:g} mm); allowed: 0 < thickness < {thick:g} mm")
-        coning = v["misalignment.coning"]
-        if abs(coning) >= t:
-            problems.append(f"misalignment.coning = {coning:g}: must be smaller than the lining thickness; "
-                            f"allowed: -{t:g} < coning < {t:g} mm")
-    _check_lining_ends(v, kind, problems)
-    _check_load(v, kind, problems)
-    _check_support(v, problems)
-    _check_tilt_pivot(v, problems)
-    if "wear" in given:
-        _check_wear(v, problems)
-        for key in ("misalignment.axis_tilt", "misalignment.radial_offset"):
-            if v[key]:
-                problems.append(f"{key} = {v[key]:g}: wear-in runs on the axisymmetric face in this version; "
-                                "remove [wear] or set it to 0")
-    _check_mesh(v, kind, problems)
-    return warnings
-
-
-def _check_lining_ends(v: dict, kind: str, problems: list[str]) -> None:
-    """A chamfered plate lining's bond runs one lining thickness past r1 and r2: its carriers must reach
-    that far (a cone's rim and cup grow with the bond; cone.py checks the webs they may run into)."""
-    if kind != "plate" or v["lining.end_shape"] != "chamfer" or v["lining.bonded_to"] not in ("disc", "plates"):
-        return
-    r1, r2, t = v["interface.inner_radius"], v["interface.outer_radius"], v["lining.thickness"]
-    if v["lining.bonded_to"] == "disc":
-        carriers = [("disc.core_inner_radius", "disc.core_outer_radius")]
-    else:
-        parts = ["pressure_plate", "counter_plate"] + (["separator_plate"] if v["interface.friction_surfaces"] > 2
-                                                        else [])
-        carriers = [(f"{p}.inner_radius", f"{p}.outer_radius") for p in parts]
-    for lo_key, hi_key in carriers:
-        lo, hi = v[lo_key], v[hi_key]
-        if r1 - t < lo <= r1:           # lo > r1 is reported by the friction-surface check
-            problems.append(f"{lo_key} = {lo:g}: with lining.end_shape = 'chamfer' the lining's bond runs one "
-                            f"lining thickness inside r1; allowed: value ≤ interface.inner_radius − "
-                            f"lining.thickness = {r1 - t:g} mm, or lining.end_shape = 'normal_to_face'")
-        if r2 <= hi < r2 + t:
-            problems.append(f"{hi_key} = {hi:g}: with lining.end_shape = 'chamfer' the lining's bond runs one "
-                            f"lining thickness past r2; allowed: value ≥ interface.outer_radius + "
-                            f"lining.thickness = {r2 + t:g} mm, or lining.end_shape = 'normal_to_face'")
-
-
-def _check_load(v: dict, kind: str, problems: list[str]) -> None:
-    ring = v.get("load.ring_radius")
-    if v["load.application"] != "ring":
-        if ring is not None:
-            problems.append(f"load.ring_radius = {ring:g}: only used with load.application = 'ring'")
-        return
-    if kind == "plate":
-        lo, hi = v["pressure_plate.inner_radius"], v["pressure_plate.outer_radius"]
-        where = "the pressure plate's back face"
-    else:
-        lo = v["cone.bore_radius"]
-        alpha = math.radians(v["interface.semi_cone_angle"])
-        lining_on_cone = v["lining.bonded_to"] == "cone"
-        hi = v["interface.outer_radius"] - (v["lining.thickness"] if lining_on_cone else 0.0) / math.cos(alpha)
-        where = "the inner cone's back face"
-    if not lo < ring < hi:
-        problems.append(f"load.ring_radius = {ring:g}: must lie on {where}; allowed: {lo:g} < value < {hi:g} mm")
-
-
-def _check_wear(v: dict, problems: list[str]) -> None:
-    duty = [k for k in ("wear.engagements", "wear.slip_speed", "wear.slip_time") if k in v]
-    target = "wear.target_wear_volume" in v
-    if duty and len(duty) < 3:
-        missing = sorted({"wear.engagements", "wear.slip_speed", "wear.slip_time"} - set(duty))
-        problems.append(f"{', '.join(missing)}: missing; the wear duty needs engagements, slip_speed and "
-                        "slip_time together")
-    if duty and target:
-        problems.append(f"wear.target_wear_volume = {v['wear.target_wear_volume']:g}: give either a target "
-                        "wear volume or the engagement duty, not both")
-    if v["wear.max_wear_depth"] >= v["lining.thickness"]:
-        problems.append(f"wear.max_wear_depth = {v['wear.max_wear_depth']:g}: must be less than the lining "
-                        f"thickness; allowed: 0 < value < {v['lining.thickness']:g} mm")
-
-
-def _check_tilt_pivot(v: dict, problems: list[str]) -> None:
-    """The tilt pivot within two outer radii of the friction face: further away, a tilt of the
-    pressed part is mostly a radial shift of its face (give that as misalignment.radial_offset)."""
-    offset, limit = v["misalignment.tilt_pivot_offset"], 2.0 * v["interface.outer_radius"]
-    if not abs(offset) <= limit:
-        problems.append(f"misalignment.tilt_pivot_offset = {offset:g}: the pivot must lie within two outer radii "
-                        f"of the middle of the friction face; allowed: -{limit:g} ≤ value ≤ {limit:g} mm")
-
-
-def _check_support(v: dict, problems: list[str]) -> None:
-    names = ("support.axial_stiffness", "support.radial_stiffness")
-    if v["support.type"] == "springs":
-        for key in names:
-            if key not in v:
-                problems.append(f"{key}: missing; required with support.type = 'springs' (value > 0 N/mm)")
-    else:
-        for key in names:
-            if key in v:
-                problems.append(f"{key} = {v[key]:g}: only used with support.type = 'springs'")
-
-
-def _check_mesh(v: dict, kind: str, problems: list[str]) -> None:
-    divisions = v["mesh.angular_divisions"]
-    if divisions % 2:
-        problems.append(f"mesh.angular_divisions = {divisions}: must be even (harmonics 0 … N on 2N "
-                        "angles); allowed: 8, 10, … 256")
-    t = v["lining.thickness"]
-    alpha = math.radians(v["interface.semi_cone_angle"])
-    slant = (v["interface.outer_radius"] - v["interface.inner_radius"]) / math.sin(alpha)
-    face, edge, body = v["mesh.interface_element_size"], v["mesh.edge_element_size"], v["mesh.element_size"]
-    if face > slant / 4.0:
-        problems.append(f"mesh.interface_element_size = {face:g}: cannot resolve the friction face "
-                        f"({slant:.3g} mm long); allowed: 0 < value ≤ {slant / 4.0:.4g} mm")
-    if face > 2.0 * t:
-        problems.append(f"mesh.interface_element_size = {face:g}: cannot resolve the lining "
-                        f"({t:g} mm thick); allowed: 0 < value ≤ {2.0 * t:.4g} mm")
-    if edge > t:
-        problems.append(f"mesh.edge_element_size = {edge:g}: cannot resolve the lining at its ends "
-                        f"({t:g} mm thick); allowed: 0 < value ≤ {t:g} mm")
-    if edge > face:
-        problems.append(f"mesh.edge_element_size = {edge:g}: must not exceed mesh.interface_element_size "
-                        f"= {face:g} mm")
-    if body < face:
-        problems.append(f"mesh.element_size = {body:g}: must not be smaller than "
-                        f"mesh.interface_element_size = {face:g} mm")
+def _kind_only(spec: Key, kind: str) -> bool:
+    """Whether a default depends on the case kind alone (a plate's 90° face), not on other values."""
+    try:
+        spec.default({"kind": kind})
+    except (KeyError, TypeError):
+        return False
+    return True

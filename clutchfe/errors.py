@@ -28,8 +28,9 @@ class CaseError(ClutchfeError):
     exit_status = EXIT_INPUT
 
     def __init__(self, problems: list[str]):
+        problems = capped(list(problems))
         super().__init__("\n".join(problems))
-        self.problems = list(problems)
+        self.problems = problems
 
 
 class OutputFolderError(CaseError):
@@ -42,6 +43,16 @@ class PhysicsError(ClutchfeError):
     exit_status = EXIT_PHYSICS
 
 
+MAX_PROBLEMS_SHOWN = 50       # past this many lines a user reads the first ones and fixes those
+
+
+def capped(problems: list[str], limit: int = MAX_PROBLEMS_SHOWN) -> list[str]:
+    """The first ``limit`` problems and one line saying how many more there are."""
+    if len(problems) <= limit:
+        return problems
+    return [*problems[:limit], f"… and {len(problems) - limit} more problems (fix these first)"]
+
+
 def exit_status(exc: BaseException) -> int:
     """The command's exit status for an exception that reached it."""
     if isinstance(exc, KeyboardInterrupt):
@@ -50,4 +61,4 @@ def exit_status(exc: BaseException) -> int:
 
 
 __all__ = ["EXIT_BUG", "EXIT_INPUT", "EXIT_INTERRUPTED", "EXIT_OK", "EXIT_PHYSICS", "CaseError",
-           "ClutchfeError", "OutputFolderError", "PhysicsError", "exit_status"]
+           "ClutchfeError", "MAX_PROBLEMS_SHOWN", "OutputFolderError", "PhysicsError", "capped", "exit_status"]

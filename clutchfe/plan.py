@@ -23,6 +23,7 @@ from .analyses.wear.report import wear_section
 from .case import Case
 from .comparison import Comparison, HandCapacity, compare_solved, hand_of
 from .errors import CaseError, PhysicsError
+from .budget import check_mesh_budget
 from .geometry import build_section, mesh_section, section_picture, write_mesh
 from .output import atomic_folder, print_table, write_all, write_json
 from .output.report import write_report
@@ -66,8 +67,11 @@ class Evidence:
 
 
 def section_of(case: Case):
-    """The case's (r, z) section (GeometryError, an input error, when it cannot be drawn)."""
-    return build_section(case)
+    """The case's (r, z) section (GeometryError, an input error, when it cannot be drawn; CaseError when
+    its mesh controls would need a mesh larger than a run may: :mod:`clutchfe.budget`)."""
+    section = build_section(case)
+    check_mesh_budget(case, section)
+    return section
 
 
 def wants_wear(case: Case) -> bool:

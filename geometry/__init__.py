@@ -5,6 +5,7 @@ Public API: :func:`build_section` (case -> Section), :func:`mesh_section`
 A new case kind is one function ``case -> Section`` added to ``SECTION_BUILDERS``.
 """
 from .cone import cone_section
+from .mesh_size import estimate_triangles
 from .mesher import SectionMesh, face_node_count, mesh_section
 from .output import section_picture, write_mesh
 from .plates import plate_section
@@ -30,5 +31,5 @@ def build_section(case) -> Section:
 
 
 __all__ = ["Body", "FrictionInterface", "GeometryError", "Region", "Section", "SectionMesh",
-           "SECTION_BUILDERS", "build_section", "check_section", "cone_section", "face_node_count",
+           "SECTION_BUILDERS", "build_section", "check_section", "cone_section", "estimate_triangles", "face_node_count",
            "mesh_section", "plate_section", "section_picture", "write_mesh"]

@@ -234,7 +234,7 @@ def _stiff_cone(bonded_to, shape):
     stiff = {"youngs_modulus": STIFF * 400.0}
     data = with_tables(CONE, lining={"youngs_modulus": 400.0, "bonded_to": bonded_to, "end_shape": shape},
                        cone=stiff, cup=stiff)
-    return clutchfe.analyse(case_from_dict(data), fields=False).comparison.capacity_position
+    return clutchfe.analyse(case_from_dict(data, limit_case=True), fields=False).comparison.capacity_position
 
 
 def test_end_shape_moves_the_capacity_position_of_a_stiff_body_cone():

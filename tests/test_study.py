@@ -80,7 +80,7 @@ def test_bad_study_file_gives_one_line_per_problem(tmp_path):
                 "vary[0].key = 'interface.friction_coeficient': not a case key (did you mean "
                 "interface.friction_coefficient?)",
                 "vary[1].std_dev = -1: allowed: value > 0",
-                "vary[2].values: load.axial_force = -5 out of range; allowed: value > 0 N",
+                "vary[2].values: load.axial_force = -5 out of range; allowed: 0 < value ≤ 1e+08 N",
                 "vary[3].key = 'misalignment.coning': belongs to plate cases",
                 "vary[4].distribution = 'gaussian': not known",
                 "outputs: 'torque_Nm' is not an output"]

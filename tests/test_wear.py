@@ -46,7 +46,7 @@ def test_winkler_lining_wears_to_uniform_wear_outer_radius_first():
     stiff = {"youngs_modulus": 4e7}
     data = with_tables(PLATE, lining={"youngs_modulus": 400.0, "thickness": 1.0}, pressure_plate=stiff,
                  disc=stiff, counter_plate=stiff)
-    solved = solved_case(case_from_dict(data))
+    solved = solved_case(case_from_dict(data, limit_case=True))
     path = wear_in(solved.solver, K, max_steps=1000)
     assert path.converged and path.stop_reason == "steady"
     r1, r2, W = 80.0, 120.0, 4000.0
@@ -124,7 +124,7 @@ def winkler():
     rigid = {"youngs_modulus": 4e11}
     data = with_tables(PLATE, lining={"youngs_modulus": 400.0, "thickness": 1.0, "poissons_ratio": 0.0},
                        pressure_plate=rigid, disc=rigid, counter_plate=rigid, mesh={"interface_element_size": 2.0})
-    return solved_case(case_from_dict(data))
+    return solved_case(case_from_dict(data, limit_case=True))
 
 
 def test_wear_path_matches_the_exact_winkler_path(winkler):

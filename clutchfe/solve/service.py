@@ -20,6 +20,7 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
+from ..budget import check_mesh_budget
 from ..case import Case
 from ..errors import PhysicsError
 from ..fem import ContactError, ContactSolver, FeModel, FeResult
@@ -130,7 +131,9 @@ class SolveService:
                 return self._cache[key]
             ref = reference_case(case)
             section = build_section(ref)
-            mesh = mesh if mesh is not None else mesh_section(section, order=1)
+            if mesh is None:
+                check_mesh_budget(case, section, with_mesh_study=False)     # before gmsh, not after
+                mesh = mesh_section(section, order=1)
             model = fe_model_of(ref, section, mesh, gaps=False)
             try:
                 solver = ContactSolver(model)

@@ -9,11 +9,11 @@ from __future__ import annotations
 import difflib
 import hashlib
 import math
-import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..case import Case, CaseError, load_case
+from ..toml_input import read_toml
 from ..names import label_problem, safe_label
 from ..schema import SCHEMA, Key, describe_range
 
@@ -154,13 +154,7 @@ class Study:
 
 def load_study(path: str | Path) -> Study:
     path = Path(path)
-    try:
-        raw = path.read_bytes()
-        data = tomllib.loads(raw.decode("utf-8"))
-    except OSError as exc:
-        raise CaseError([f"{path}: cannot read the study file ({exc.strerror})"]) from None
-    except (UnicodeDecodeError, tomllib.TOMLDecodeError) as exc:
-        raise CaseError([f"{path}: not a valid TOML study file: {exc}"]) from None
+    data, raw = read_toml(path, "study file")      # the same limits as a case file
     return study_from_dict(data, path, hashlib.sha256(raw).hexdigest())
 
 
@@ -218,8 +212,7 @@ def _base_case(data: dict, path: Path, problems: list[str]):
     except CaseError as exc:
         problems.extend(f"base_case {ref}: {p}" for p in exc.problems)
         return None, {}
-    with open(case_path, "rb") as fh:
-        return case, tomllib.load(fh)
+    return case, read_toml(case_path)[0]
 
 
 def case_key(full: str) -> Key | None:

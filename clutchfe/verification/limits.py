@@ -43,14 +43,14 @@ class _Solved:
 
 
 def _solve(data: dict):
-    case = case_from_dict(data)
+    case = case_from_dict(data, limit_case=True)
     return case, _Solved(case)
 
 
 def thin_lining_limit() -> list[Check]:
     """A lining 8 x thinner than the default between rigid bodies: p -> uniform, ξ -> 1."""
     data = _rigid_bodies(TEST_CONE)
-    thin = case_from_dict(data).lining.thickness / 8.0
+    thin = case_from_dict(data, limit_case=True).lining.thickness / 8.0
     case, solved = _solve(with_tables(data, lining={"thickness": thin}))
     r = solved.result
     name = f"thin lining on rigid bodies (t = {thin:g} mm)"

@@ -31,7 +31,7 @@ WEAR_COEFFICIENT = 2e-6          # mm³/(N·m); the worn-in state does not depen
 
 
 def uniform_wear_limit() -> list[Check]:
-    case = case_from_dict(PLATE)
+    case = case_from_dict(PLATE, limit_case=True)
     solved = SolveService().solve(case, fields=False)
     path = wear_in(solved.solver, WEAR_COEFFICIENT, max_steps=1000, gaps=list(solved.gaps),
                    load_scale=solved.load_scale)

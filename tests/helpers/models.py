@@ -31,6 +31,6 @@ def coarse_stiff_cone():
     data["cone"] = {"youngs_modulus": 2e8}
     data["mesh"] = {"element_order": 1, "interface_element_size": 2.5, "edge_element_size": 1.25,
                     "element_size": 7.5, "lining_layers": 1}
-    case = case_from_dict(data)
+    case = case_from_dict(data, limit_case=True)
     section = section_of(case)
     return fe_model_of(case, section, mesh_section(section, order=1)), section

@@ -1,0 +1,51 @@
+"""The largest mesh a run may need, refused before meshing when the case's controls ask for more.
+
+Every case ``clutchfe check`` accepts solves within bounded time and memory on the 2-core
+machine the tool is made for.  The bound is the triangle count the mesh controls imply
+(:func:`clutchfe.geometry.estimate_triangles`, within −15 %/+5 % of gmsh's on the demo
+cases), on the run's finest mesh: the mesh study's last mesh is ``ratio⁴`` times the run's.
+Measured on the 2-core machine (one solve, P2, docs/solver-notes.md):
+
+* axisymmetric: 85 000 triangles take 21 s CPU and 2.3 GB, so 60 000 keeps one solve
+  under ~1.7 GB and ~15 s;
+* tilt or offset (the (r, θ) contact grid): 15 500 triangles take 1.2 GB and about 1.1 s
+  CPU per angular division (53 s at 48), so 20 000 keeps it under ~1.6 GB.
+"""
+from __future__ import annotations
+
+from .case import Case
+from .errors import CaseError
+from .geometry import Section, estimate_triangles
+
+MAX_TRIANGLES = 60000           # one axisymmetric solve
+MAX_TRIANGLES_TILTED = 20000    # one solve on the (r, θ) grid
+
+
+def finest_factor(case: Case) -> float:
+    """How many times the run's own mesh its finest mesh has (the mesh study's last one)."""
+    return case.verification.refinement_ratio ** 4 if case.verification.mesh_study else 1.0
+
+
+def check_mesh_budget(case: Case, section: Section, with_mesh_study: bool = True) -> int:
+    """The estimated triangles of the run's mesh; :class:`CaseError` (exit 2) when its finest is too big.
+
+    ``with_mesh_study=False`` checks this one mesh only (the solve service, which meshes the
+    mesh study's finer cases one by one).
+    """
+    estimate = estimate_triangles(section)
+    factor = finest_factor(case) if with_mesh_study else 1.0
+    tilted = bool(case.misalignment.axis_tilt or case.misalignment.radial_offset)
+    limit = MAX_TRIANGLES_TILTED if tilted else MAX_TRIANGLES
+    finest = estimate * factor
+    if finest <= limit:
+        return estimate
+    where = (f"the mesh study's finest mesh (ratio {case.verification.refinement_ratio:g}⁴ = {factor:.3g} × the "
+             f"run's {estimate} triangles)" if factor > 1 else "the run's mesh")
+    solve = "a tilt or offset solve on the (r, θ) grid" if tilted else "an axisymmetric solve"
+    raise CaseError([
+        f"mesh.interface_element_size = {case.mesh.interface_element_size:g}: with mesh.edge_element_size = "
+        f"{case.mesh.edge_element_size:g}, mesh.element_size = {case.mesh.element_size:g} mm and mesh.refinement "
+        f"= {case.mesh.refinement:g} the mesh controls give about {finest:.0f} triangles on {where}; allowed: at "
+        f"most {limit} for {solve} (about 1.7 GB on a 2-core machine): coarser sizes, a lower refinement"
+        + (", or verification.mesh_study = false" if factor > 1 else "")
+        + " (mesh sizes not given follow lining.thickness and the face width: clutchfe keys)"])
