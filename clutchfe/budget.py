@@ -15,10 +15,13 @@ from __future__ import annotations
 
 from .case import Case
 from .errors import CaseError
-from .geometry import Section, estimate_triangles
+from .geometry import Section, estimate_triangles, face_node_count
 
 MAX_TRIANGLES = 60000           # one axisymmetric solve
 MAX_TRIANGLES_TILTED = 20000    # one solve on the (r, θ) grid
+# the contact solve condenses the stiffness onto the normal displacement of every friction-face
+# node (fem/condense.py): about five dense m × m arrays, 8 m² bytes each, 1 GB at m = 5000
+MAX_CONTACT_NODES = 5000
 
 
 def finest_factor(case: Case) -> float:
@@ -38,6 +41,7 @@ def check_mesh_budget(case: Case, section: Section, with_mesh_study: bool = True
     limit = MAX_TRIANGLES_TILTED if tilted else MAX_TRIANGLES
     finest = estimate * factor
     if finest <= limit:
+        _check_contact_nodes(case, section, factor)
         return estimate
     where = (f"the mesh study's finest mesh (ratio {case.verification.refinement_ratio:g}⁴ = {factor:.3g} × the "
              f"run's {estimate} triangles)" if factor > 1 else "the run's mesh")
@@ -49,3 +53,25 @@ def check_mesh_budget(case: Case, section: Section, with_mesh_study: bool = True
         f"most {limit} for {solve} (about 1.7 GB on a 2-core machine): coarser sizes, a lower refinement"
         + (", or verification.mesh_study = false" if factor > 1 else "")
         + " (mesh sizes not given follow lining.thickness and the face width: clutchfe keys)"])
+
+
+def contact_nodes(section: Section, order: int) -> int:
+    """Nodes on the friction faces, both sides of every interface (the condensed unknowns)."""
+    per_side = [face_node_count(itf.slant_length, section.face_size, section.edge_size)[0]
+                for itf in section.interfaces]
+    return sum(2 * ((n - 1) * order + 1) for n in per_side)
+
+
+def _check_contact_nodes(case: Case, section: Section, factor: float) -> None:
+    # along the faces the node count grows with the square root of the triangle factor (one direction)
+    nodes = contact_nodes(section, case.mesh.element_order) * factor ** 0.5
+    if nodes <= MAX_CONTACT_NODES:
+        return
+    faces = len(section.interfaces)
+    raise CaseError([
+        f"mesh.interface_element_size = {case.mesh.interface_element_size:g}: on {faces} friction face"
+        f"{'s' if faces > 1 else ''} (interface.friction_surfaces = {case.interface.friction_surfaces}) it gives "
+        f"about {nodes:.0f} contact nodes on the run's finest mesh; allowed: at most {MAX_CONTACT_NODES} (the "
+        f"contact solve holds dense matrices of their number squared, about 1 GB at the limit): a coarser "
+        f"mesh.interface_element_size, mesh.element_order = 1"
+        + (", or verification.mesh_study = false" if factor > 1 else "")])

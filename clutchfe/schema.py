@@ -268,7 +268,9 @@ SCHEMA: dict[str, dict[str, Key]] = {
                                  "its friction face; > 0 towards the part's loaded back face, < 0 into the "
                                  "mate; 0 = the middle of the friction face. Allowed: within two outer "
                                  "radii (|value| ≤ 2 × interface.outer_radius); further away a tilt is "
-                                 "mostly a radial offset", default=0.0),
+                                 "mostly a radial offset", default=0.0, low=-6000.0, high=6000.0,
+                                 low_inclusive=True, high_inclusive=True,
+                                 why="within two outer radii of the face (checked with interface.outer_radius)"),
         "guided_at": Key("", "where the guidance holds the pressed part across the axis: \"load_ring\" "
                          "(where its axial load enters: the ring-load radius on its back face, or the "
                          "middle of the back face) or \"bore\" (the middle of its bore: a splined shaft "
@@ -279,7 +281,9 @@ SCHEMA: dict[str, dict[str, Key]] = {
                                  high=1e7, high_inclusive=True,
                                  why="up to the largest ship and mill clutches, ~10 MN·m (common practice)"),
         "service_factor": Key("", "factor on the required torque for shocks and duty (common practice 1.2–3)",
-                              default=1.0, low=1.0, high=10.0, low_inclusive=True, high_inclusive=True),
+                              default=1.0, low=1.0, high=10.0, low_inclusive=True, high_inclusive=True,
+                              why="service factors for clutches run 1.2–3 (common practice); beyond 10 the "
+                                  "requirement itself is wrong"),
     },
     "mesh": {
         "interface_element_size": Key("mm", "element size along the friction face, mid-face",
@@ -293,18 +297,24 @@ SCHEMA: dict[str, dict[str, Key]] = {
                                  low=0.0, high=1000.0,
                                       high_inclusive=True, why="a size in mm; the number of elements it gives "
                                       "is estimated before meshing and bounded (see mesh limits)"),
-        "element_size": Key("mm", "largest element size in the bodies",
-                            default=lambda c: _r(4.0 * c["mesh.interface_element_size"], 3),
+        "element_size": Key("mm", "largest element size in the bodies (default: 4 × the face size, and at "
+                            "least r2/40 so that a narrow face or a thin lining does not fill the bodies with "
+                            "elements)",
+                            default=lambda c: _r(max(4.0 * c["mesh.interface_element_size"], _r2(c) / 40.0), 3),
                             low=0.0, high=1000.0,
                                       high_inclusive=True, why="a size in mm; the number of elements it gives "
                                       "is estimated before meshing and bounded (see mesh limits)"),
         "lining_layers": Key("", "elements through the lining thickness (4 by default, so that the mesh study's "
                              "two finer meshes at refinement ratio 1.5 have exactly 6 and 9)", int, default=4,
-                             low=1, high=40, low_inclusive=True, high_inclusive=True),
+                             low=1, high=40, low_inclusive=True, high_inclusive=True,
+                             why="1 is the least that models a layer; past 40 the element count, not the "
+                                 "accuracy, grows (the mesh study says what the layers buy)"),
         "refinement": Key("", "refine the whole mesh by this factor: every element size divided by it, the lining "
                           "layers and the thin-part element counts multiplied by it (2 = twice as fine in every "
                           "direction, about 4 times the elements)", default=1.0, low=0.1, high=16.0,
-                          low_inclusive=True, high_inclusive=True),
+                          low_inclusive=True, high_inclusive=True,
+                          why="the element count grows with its square; the mesh budget refuses what would "
+                              "not fit anyway"),
         "element_order": Key("", "1 = linear, 2 = quadratic triangles", int, default=2, choices=(1, 2)),
         "angular_divisions": Key("", "angles of the contact grid around the axis for tilt and offset "
                                  "(harmonics 0 … half of it)", int, default=48, low=8, high=256,
@@ -360,7 +370,9 @@ SCHEMA: dict[str, dict[str, Key]] = {
                                 "two finer ones with every size divided by the ratio and its square, every count "
                                 "(lining layers included) multiplied: lining_layers times the ratio squared must be "
                                 "whole for similar meshes, e.g. 4 layers at ratio 1.5 or 2", default=1.5,
-                                low=1.3, high=3.0, low_inclusive=True, high_inclusive=True),
+                                low=1.3, high=3.0, low_inclusive=True, high_inclusive=True,
+                                why="a grid-convergence study needs a ratio of at least 1.3 (Celik et al., J. "
+                                    "Fluids Eng. 130, 2008); past 3 the finest mesh grows 81-fold"),
     },
 }
 

@@ -5,9 +5,9 @@ lining ends to the body size, capped in thin parts: :mod:`geometry.mesher`).  Th
 of triangles is the integral of the element density of that field over the section,
 ``∫ dA / (a h²)`` with ``a = √3/4`` the area of an equilateral triangle of side ``h``; the
 linings are structured, so their count is exact.  The integral is taken on a sampling
-grid of each region.  Measured against gmsh on the demo cases and on meshes 3× finer and
-coarser it is within ±35 % (tests/test_mesh_budget.py); the budget that refuses a case
-allows for that.
+grid of each region, plus one triangle per boundary edge (Euler's relation for a
+triangulation).  Measured against gmsh on the demo cases at 0.4–2.25 × their mesh density
+it is within −15 %/+5 % (tests/test_mesh_budget.py holds it to 20 %).
 """
 from __future__ import annotations
 
