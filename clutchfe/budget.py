@@ -20,8 +20,8 @@ from .geometry import Section, estimate_triangles, face_node_count
 MAX_TRIANGLES = 60000           # one axisymmetric solve
 MAX_TRIANGLES_TILTED = 20000    # one solve on the (r, θ) grid
 # the contact solve condenses the stiffness onto the normal displacement of every friction-face
-# node (fem/condense.py): about five dense m × m arrays, 8 m² bytes each, 1 GB at m = 5000
-MAX_CONTACT_NODES = 5000
+# node (fem/condense.py): dense m × m arrays; measured 1.9 GB peak at m = 4800 (a 0.1 mm lining)
+MAX_CONTACT_NODES = 4000
 
 
 def finest_factor(case: Case) -> float:
@@ -72,6 +72,6 @@ def _check_contact_nodes(case: Case, section: Section, factor: float) -> None:
         f"mesh.interface_element_size = {case.mesh.interface_element_size:g}: on {faces} friction face"
         f"{'s' if faces > 1 else ''} (interface.friction_surfaces = {case.interface.friction_surfaces}) it gives "
         f"about {nodes:.0f} contact nodes on the run's finest mesh; allowed: at most {MAX_CONTACT_NODES} (the "
-        f"contact solve holds dense matrices of their number squared, about 1 GB at the limit): a coarser "
+        f"contact solve holds dense matrices of their number squared, about 1.5 GB at the limit): a coarser "
         f"mesh.interface_element_size, mesh.element_order = 1"
         + (", or verification.mesh_study = false" if factor > 1 else "")])

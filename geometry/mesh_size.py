@@ -56,6 +56,15 @@ def _body_triangles(section: Section, region, segments, ends, faces) -> float:
     inside = Polygon(loop).contains_points(grid)
     if inside.sum() < 50:                        # a sliver the grid misses: its cap size throughout
         return area / (EQUILATERAL * cap * cap)
+    # beyond its largest grading distance a face or a lining end no longer sets the size: only the
+    # nearby ones count (in a pack of 40 faces a plate sees its own two)
+    k = section.refinement
+    reach = max(4.0 * k * section.body_size, 8.0 * k * section.face_size)
+    lo_r, hi_r = lo - reach, hi + reach
+    near = ((np.minimum(segments[:, :2], segments[:, 2:]) <= hi_r).all(axis=1)
+            & (np.maximum(segments[:, :2], segments[:, 2:]) >= lo_r).all(axis=1)) if len(segments) else []
+    segments = segments[near] if len(segments) else segments
+    ends = ends[((ends >= lo_r) & (ends <= hi_r)).all(axis=1)] if len(ends) else ends
     h = _size(section, grid[inside], segments, ends, cap)
     # the sampled area differs from the exact one by the grid's boundary cells: scale to the exact area
     inner = (1.0 / (EQUILATERAL * h * h)).mean() * area

@@ -13,7 +13,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..case import Case, CaseError, load_case
-from ..toml_input import read_toml
+from ..toml_input import read_toml, shown
 from ..names import label_problem, safe_label
 from ..schema import SCHEMA, Key, describe_range
 
@@ -176,7 +176,7 @@ def study_from_dict(data: dict, path: Path, sha256: str = "") -> Study:
         if item is None:
             continue
         if item.key in seen:
-            problems.append(f"vary[{k}].key = {item.key!r}: varied twice; allowed: each key once")
+            problems.append(f"vary[{k}].key = {shown(item.key)}: varied twice; allowed: each key once")
         seen.add(item.key)
         (grids if isinstance(item, Grid) else dists).append(item)
     method, samples, seed = _sampling(data, any("distribution" in e for e in entries), problems)
@@ -197,6 +197,8 @@ def study_from_dict(data: dict, path: Path, sha256: str = "") -> Study:
 
 
 def _hint(word: str, options) -> str:
+    if len(str(word)) > 60:         # no near match is that long; difflib is quadratic in it
+        return ""
     close = difflib.get_close_matches(str(word), list(options), n=1, cutoff=0.6)
     return f" (did you mean {close[0]}?)" if close else ""
 
@@ -204,7 +206,7 @@ def _hint(word: str, options) -> str:
 def _base_case(data: dict, path: Path, problems: list[str]):
     ref = data.get("base_case")
     if not isinstance(ref, str):
-        problems.append(f"base_case = {ref!r}: required; the case file to vary, relative to the study file")
+        problems.append(f"base_case = {shown(ref)}: required; the case file to vary, relative to the study file")
         return None, {}
     case_path = (path.parent / ref) if not Path(ref).is_absolute() else Path(ref)
     try:
@@ -226,19 +228,19 @@ def _vary(entry: dict, k: int, base: Case | None, problems: list[str]):
     spec = case_key(full) if isinstance(full, str) else None
     if spec is None:
         options = [f"{t}.{n}" for t in SCHEMA if t for n in SCHEMA[t]]
-        problems.append(f"{where}.key = {full!r}: not a case key{_hint(full, options)}; allowed: a numeric "
+        problems.append(f"{where}.key = {shown(full)}: not a case key{_hint(full, options)}; allowed: a numeric "
                         "case key such as interface.friction_coefficient (see `clutchfe keys`)")
         return None
     if spec.kind not in (int, float) or spec.choices:
-        problems.append(f"{where}.key = {full!r}: only numeric keys can be varied; this one is "
+        problems.append(f"{where}.key = {shown(full)}: only numeric keys can be varied; this one is "
                         f"{describe_range(spec)}")
         return None
     if base is not None and base.kind not in spec.kinds:
-        problems.append(f"{where}.key = {full!r}: belongs to {' or '.join(spec.kinds)} cases; the base case is "
-                        f"kind = {base.kind!r}")
+        problems.append(f"{where}.key = {shown(full)}: belongs to {' or '.join(spec.kinds)} cases; the base case is "
+                        f"kind = {shown(base.kind)}")
         return None
     if full.endswith("_stiffness") and base is not None and base.support.type != "springs":
-        problems.append(f"{where}.key = {full!r}: the base case's support.type = {base.support.type!r} ignores it; "
+        problems.append(f"{where}.key = {shown(full)}: the base case's support.type = {shown(base.support.type)} ignores it; "
                         "allowed: set support.type = 'springs' in the base case")
         return None
     allowed = {"key", "distribution", *GRID_KEYS, *{p for ps in DISTRIBUTIONS.values() for p in ps}}
@@ -253,7 +255,7 @@ def _vary(entry: dict, k: int, base: Case | None, problems: list[str]):
 def _number(entry: dict, name: str, where: str, problems: list[str]) -> float | None:
     value = entry.get(name)
     if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
-        problems.append(f"{where}.{name} = {value!r}: must be a finite number")
+        problems.append(f"{where}.{name} = {shown(value)}: must be a finite number")
         return None
     return float(value)
 
@@ -268,7 +270,7 @@ def _grid(entry: dict, where: str, full: str, spec: Key, problems: list[str]) ->
     if "values" in entry:
         values = entry["values"]
         if not isinstance(values, list) or not values:
-            problems.append(f"{where}.values = {values!r}: must be a non-empty list of numbers")
+            problems.append(f"{where}.values = {shown(values)}: must be a non-empty list of numbers")
             return None
         nums = [_number({"v": v}, "v", f"{where}.values", problems) for v in values]
         if None in nums:
@@ -277,10 +279,10 @@ def _grid(entry: dict, where: str, full: str, spec: Key, problems: list[str]) ->
         start, stop = _number(entry, "start", where, problems), _number(entry, "stop", where, problems)
         steps, spacing = entry.get("steps"), entry.get("spacing", "linear")
         if not isinstance(steps, int) or isinstance(steps, bool) or not 2 <= steps <= 10000:
-            problems.append(f"{where}.steps = {steps!r}: allowed: a whole number 2 ≤ steps ≤ 10000")
+            problems.append(f"{where}.steps = {shown(steps)}: allowed: a whole number 2 ≤ steps ≤ 10000")
             return None
         if spacing not in ("linear", "log"):
-            problems.append(f"{where}.spacing = {spacing!r}: allowed: 'linear' or 'log'")
+            problems.append(f"{where}.spacing = {shown(spacing)}: allowed: 'linear' or 'log'")
             return None
         if start is None or stop is None:
             return None
@@ -310,11 +312,11 @@ def _spaced(start: float, stop: float, steps: int, spacing: str) -> list[float]:
 def _distribution(entry: dict, where: str, full: str, spec: Key, problems: list[str]) -> Distribution | None:
     kind = entry["distribution"]
     if kind not in DISTRIBUTIONS:
-        problems.append(f"{where}.distribution = {kind!r}: not known{_hint(kind, DISTRIBUTIONS)}; allowed: "
+        problems.append(f"{where}.distribution = {shown(kind)}: not known{_hint(kind, DISTRIBUTIONS)}; allowed: "
                         + ", ".join(DISTRIBUTIONS))
         return None
     if spec.kind is int:
-        problems.append(f"{where}.key = {full!r}: takes whole numbers; vary it as a sweep (values = [...])")
+        problems.append(f"{where}.key = {shown(full)}: takes whole numbers; vary it as a sweep (values = [...])")
         return None
     names = DISTRIBUTIONS[kind]
     for extra in sorted(set(entry) & (set(GRID_KEYS) | {p for ps in DISTRIBUTIONS.values() for p in ps})
@@ -347,19 +349,19 @@ def _distribution(entry: dict, where: str, full: str, spec: Key, problems: list[
 def _sampling(data: dict, has_dists: bool, problems: list[str]) -> tuple[str, int, int]:
     method = data.get("method", "latin_hypercube")
     if method not in METHODS:
-        problems.append(f"method = {method!r}: allowed: {', '.join(METHODS)}{_hint(method, METHODS)}")
+        problems.append(f"method = {shown(method)}: allowed: {', '.join(METHODS)}{_hint(method, METHODS)}")
     seed = data.get("seed", 0)
     if not isinstance(seed, int) or isinstance(seed, bool) or not 0 <= seed < 2**63:
-        problems.append(f"seed = {seed!r}: allowed: a whole number 0 ≤ seed < 2^63")
+        problems.append(f"seed = {shown(seed)}: allowed: a whole number 0 ≤ seed < 2^63")
         seed = 0
     if not has_dists:
         if "samples" in data:
-            problems.append(f"samples = {data['samples']!r}: only used with distributions; a sweep solves each "
+            problems.append(f"samples = {shown(data['samples'])}: only used with distributions; a sweep solves each "
                             "grid point once")
         return method, 1, seed
     samples = data.get("samples")
     if not isinstance(samples, int) or isinstance(samples, bool) or not 2 <= samples <= MAX_SAMPLES:
-        problems.append(f"samples = {samples!r}: required with distributions; allowed: a whole number "
+        problems.append(f"samples = {shown(samples)}: required with distributions; allowed: a whole number "
                         f"2 ≤ samples ≤ {MAX_SAMPLES} (per grid point)")
         samples = 2
     return method, samples, seed
@@ -368,11 +370,11 @@ def _sampling(data: dict, has_dists: bool, problems: list[str]) -> tuple[str, in
 def _outputs(data: dict, problems: list[str]) -> tuple[str, ...]:
     chosen = data.get("outputs", [])
     if not isinstance(chosen, list):
-        problems.append(f"outputs = {chosen!r}: must be a list of output names; allowed: {', '.join(OUTPUTS)}")
+        problems.append(f"outputs = {shown(chosen)}: must be a list of output names; allowed: {', '.join(OUTPUTS)}")
         return CORE_OUTPUTS
     for name in chosen:
         if name not in OUTPUTS:
-            problems.append(f"outputs: {name!r} is not an output{_hint(name, OUTPUTS)}; allowed: "
+            problems.append(f"outputs: {shown(name)} is not an output{_hint(name, OUTPUTS)}; allowed: "
                             + ", ".join(OUTPUTS))
     return CORE_OUTPUTS + tuple(n for n in OUTPUTS if n in chosen and n not in CORE_OUTPUTS)
 
@@ -389,17 +391,17 @@ def _limit(entry, base: Case | None, problems: list[str]) -> Limit | None:
         if isinstance(full, str) else False
     if spec is None or spec.kind is not float or (base is not None and base.kind not in spec.kinds) \
             or ignored:
-        problems.append(f"limit.key = {full!r}: allowed: a numeric case key of this case kind, e.g. "
+        problems.append(f"limit.key = {shown(full)}: allowed: a numeric case key of this case kind, e.g. "
                         "misalignment.cone_angle_mismatch, misalignment.coning, support.axial_stiffness")
         return None
     low, high = _number(entry, "low", "limit", problems), _number(entry, "high", "limit", problems)
     criterion = entry.get("criterion", "required_torque")
     steps = entry.get("steps", 9)
     if criterion not in CRITERIA:
-        problems.append(f"limit.criterion = {criterion!r}: allowed: {', '.join(CRITERIA)}")
+        problems.append(f"limit.criterion = {shown(criterion)}: allowed: {', '.join(CRITERIA)}")
         return None
     if not isinstance(steps, int) or isinstance(steps, bool) or not 2 <= steps <= 200:
-        problems.append(f"limit.steps = {steps!r}: allowed: a whole number 2 ≤ steps ≤ 200")
+        problems.append(f"limit.steps = {shown(steps)}: allowed: a whole number 2 ≤ steps ≤ 200")
         return None
     if low is None or high is None:
         return None
@@ -414,7 +416,7 @@ def _limit(entry, base: Case | None, problems: list[str]) -> Limit | None:
         need = ("requirement.required_torque" if criterion == "required_torque" else "lining.allowable_pressure")
         table, _, key = need.partition(".")
         if getattr(getattr(base, table), key) is None:
-            problems.append(f"limit.criterion = {criterion!r}: the base case gives no {need}; set it there")
+            problems.append(f"limit.criterion = {shown(criterion)}: the base case gives no {need}; set it there")
             return None
     return Limit(full, low, high, criterion, steps)
 
