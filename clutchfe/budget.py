@@ -44,12 +44,12 @@ def check_mesh_budget(case: Case, section: Section, with_mesh_study: bool = True
         _check_contact_nodes(case, section, factor)
         return estimate
     where = (f"the mesh study's finest mesh (ratio {case.verification.refinement_ratio:g}⁴ = {factor:.3g} × the "
-             f"run's {estimate} triangles)" if factor > 1 else "the run's mesh")
+             f"run's {estimate:.3g} triangles)" if factor > 1 else "the run's mesh")
     solve = "a tilt or offset solve on the (r, θ) grid" if tilted else "an axisymmetric solve"
     raise CaseError([
         f"mesh.interface_element_size = {case.mesh.interface_element_size:g}: with mesh.edge_element_size = "
         f"{case.mesh.edge_element_size:g}, mesh.element_size = {case.mesh.element_size:g} mm and mesh.refinement "
-        f"= {case.mesh.refinement:g} the mesh controls give about {finest:.0f} triangles on {where}; allowed: at "
+        f"= {case.mesh.refinement:g} the mesh controls give about {finest:.3g} triangles on {where}; allowed: at "
         f"most {limit} for {solve} (about 1.7 GB on a 2-core machine): coarser sizes, a lower refinement"
         + (", or verification.mesh_study = false" if factor > 1 else "")
         + " (mesh sizes not given follow lining.thickness and the face width: clutchfe keys)"])
@@ -71,7 +71,7 @@ def _check_contact_nodes(case: Case, section: Section, factor: float) -> None:
     raise CaseError([
         f"mesh.interface_element_size = {case.mesh.interface_element_size:g}: on {faces} friction face"
         f"{'s' if faces > 1 else ''} (interface.friction_surfaces = {case.interface.friction_surfaces}) it gives "
-        f"about {nodes:.0f} contact nodes on the run's finest mesh; allowed: at most {MAX_CONTACT_NODES} (the "
+        f"about {nodes:.3g} contact nodes on the run's finest mesh; allowed: at most {MAX_CONTACT_NODES} (the "
         f"contact solve holds dense matrices of their number squared, about 1.5 GB at the limit): a coarser "
         f"mesh.interface_element_size, mesh.element_order = 1"
         + (", or verification.mesh_study = false" if factor > 1 else "")])

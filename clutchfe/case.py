@@ -9,6 +9,7 @@ import copy
 import difflib
 import hashlib
 import math
+import re
 from dataclasses import dataclass, field, make_dataclass, replace
 from pathlib import Path
 from typing import Any
@@ -161,6 +162,7 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
     if kind not in ("cone", "plate"):
         problems.append(f"kind = {shown(kind)}: allowed: 'cone' or 'plate'" if kind is not None
                         else "kind: missing; allowed: 'cone' or 'plate'")
+        flat.pop("kind", None)          # reported once, here
         kind = None
     given = frozenset(k for k, v in data.items() if isinstance(v, dict))
     values, invalid = _typed_values(flat, kind, problems, limit_case)
@@ -196,23 +198,51 @@ def _flatten(data: dict, problems: list[str]) -> dict[str, Any]:
     for key, value in data.items():
         if isinstance(value, dict):
             if key not in SCHEMA or not key:
-                problems.append(f"[{shown(key, 40)[1:-1]}]: unknown table{_hint(key, tables)}; allowed tables: "
+                problems.append(f"[{_key_text(key)}]: unknown table{_hint(key, tables)}; allowed tables: "
                                 + ", ".join(tables))
                 continue
             for sub, subval in value.items():
                 if sub not in SCHEMA[key]:
-                    problems.append(f"{key}.{shown(sub, 40)[1:-1]}: unknown key{_hint(sub, list(SCHEMA[key]), key)}; "
+                    problems.append(f"{key}.{_key_text(sub)}: unknown key{_hint(sub, list(SCHEMA[key]), key)}; "
                                     f"allowed in [{key}]: " + ", ".join(SCHEMA[key]))
                     continue
                 flat[f"{key}.{sub}"] = subval
         elif key in SCHEMA[""]:
             flat[key] = value
+        elif key in SCHEMA:
+            problems.append(f"{_key_text(key)} = {shown(value)}: must be a table; allowed: a [{key}] table of "
+                            f"keys (clutchfe keys)")
         else:
             where = [t for t in tables if key in SCHEMA[t]]
-            hint = f" (did you mean [{where[0]}] {key}?)" if where else _hint(key, list(SCHEMA[""]))
-            problems.append(f"{shown(key, 40)[1:-1]}: unknown top-level key{hint}; allowed at top level: "
+            table, _, sub = key.partition(".")
+            if where:
+                hint = f" (did you mean [{where[0]}] {key}?)"
+            elif sub in SCHEMA.get(table, {}) and table:
+                hint = f" (did you mean {sub} in the [{table}] table?)"
+            else:
+                hint = _hint(key, list(SCHEMA[""]))
+            problems.append(f"{_key_text(key)}: unknown top-level key{hint}; allowed at top level: "
                             + ", ".join(SCHEMA[""]))
     return flat
+
+
+def _key_text(key: str) -> str:
+    """A key as the file spells it: bare when it may be (``colour``), quoted otherwise (``""``, ``"a b"``)."""
+    if re.fullmatch(r"[A-Za-z0-9_-]{1,60}", key):
+        return key
+    cut = key if len(key) <= 40 else key[:39]
+    text = "".join(ch if ch.isprintable() and ch not in '"\\' else _toml_escape(ch) for ch in cut)
+    return f'"{text}…"' if len(key) > 40 else f'"{text}"'
+
+
+
+def _toml_escape(ch: str) -> str:
+    """A character as a TOML basic string writes it escaped (so a key with an escape sequence or an
+    unprintable character is shown as it is typed, never sent raw to the terminal)."""
+    if ch in '"\\':
+        return "\\" + ch
+    code = ord(ch)
+    return f"\\u{code:04x}" if code <= 0xFFFF else f"\\U{code:08x}"
 
 
 def _hint(word: str, options: list[str], table: str = "") -> str:

@@ -288,22 +288,25 @@ SCHEMA: dict[str, dict[str, Key]] = {
     "mesh": {
         "interface_element_size": Key("mm", "element size along the friction face, mid-face",
                                       default=lambda c: _r(min(c["lining.thickness"],
-                                                               _slant(c) / 30.0), 3), low=0.0, high=1000.0,
-                                      high_inclusive=True, why="a size in mm; the number of elements it gives "
-                                      "is estimated before meshing and bounded (see mesh limits)"),
+                                                               _slant(c) / 30.0), 3), low=0.001, high=1000.0,
+                                      low_inclusive=True, high_inclusive=True, why="a size in mm, at least 1 µm "
+                                      "(no clutch feature needs finer); the elements it gives are estimated "
+                                      "before meshing and bounded (docs/limits.md)"),
         "edge_element_size": Key("mm", "element size at the ends of the lining, where the pressure changes "
                                  "fastest", default=lambda c: _r(min(c["lining.thickness"] / 4.0,
                                                                      c["mesh.interface_element_size"] / 2.0), 4),
-                                 low=0.0, high=1000.0,
-                                      high_inclusive=True, why="a size in mm; the number of elements it gives "
-                                      "is estimated before meshing and bounded (see mesh limits)"),
+                                 low=0.001, high=1000.0,
+                                      low_inclusive=True, high_inclusive=True, why="a size in mm, at least 1 µm "
+                                      "(no clutch feature needs finer); the elements it gives are estimated "
+                                      "before meshing and bounded (docs/limits.md)"),
         "element_size": Key("mm", "largest element size in the bodies (default: 4 × the face size, and at "
                             "least r2/40 so that a narrow face or a thin lining does not fill the bodies with "
                             "elements)",
                             default=lambda c: _r(max(4.0 * c["mesh.interface_element_size"], _r2(c) / 40.0), 3),
-                            low=0.0, high=1000.0,
-                                      high_inclusive=True, why="a size in mm; the number of elements it gives "
-                                      "is estimated before meshing and bounded (see mesh limits)"),
+                            low=0.001, high=1000.0,
+                                      low_inclusive=True, high_inclusive=True, why="a size in mm, at least 1 µm "
+                                      "(no clutch feature needs finer); the elements it gives are estimated "
+                                      "before meshing and bounded (docs/limits.md)"),
         "lining_layers": Key("", "elements through the lining thickness (4 by default, so that the mesh study's "
                              "two finer meshes at refinement ratio 1.5 have exactly 6 and 9)", int, default=4,
                              low=1, high=40, low_inclusive=True, high_inclusive=True,
