@@ -7,31 +7,34 @@
 :func:`analyse` is everything that is computed for a case (no files); a study sample is
 exactly that call on the sample's case.  :func:`run_case` adds the evidence and writes the
 results folder atomically.  No stage registers itself anywhere: this module is the list.
+
+Start-up: the solve service, the analyses and the verification stage (scikit-fem, scipy's
+sparse solvers, optimisation and quadrature: over a second of CPU to import) are imported in
+the functions that call them, so ``clutchfe check``, which needs only :func:`section_of` and
+:func:`print_check`, starts without them (DEVELOPERS.md, "Start-up").
 """
 from __future__ import annotations
 
 from dataclasses import dataclass
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from rich.progress import Progress
 from rich.table import Table
 
-from .analyses.tilt import TiltResult, tilt_result, tilt_summary_keys, write_tilt_files
-from .analyses.tilt.report import tilt_section
-from .analyses.wear import WearRun, wear_in_case, wear_summary, wear_table, write_wear_files
-from .analyses.wear.report import wear_section
 from .case import Case
 from .comparison import Comparison, HandCapacity, compare_solved, hand_of
 from .errors import CaseError, PhysicsError
 from .budget import check_mesh_budget
 from .geometry import build_section, mesh_section, section_picture, write_mesh
 from .output import atomic_folder, print_table, write_all, write_json
-from .output.report import write_report
 from .provenance import CAUTION, __version__, versions
-from .solve import SolvedCase, SolveService
-from .verification import TableOrigin, load_table
-from .verification.store import verification_summary
-from .verification.mesh_study import mesh_study
+
+if TYPE_CHECKING:       # the types only; the stages themselves where they run (start-up, see above)
+    from .analyses.tilt import TiltResult
+    from .analyses.wear import WearRun
+    from .solve import SolvedCase, SolveService
+    from .verification import TableOrigin
 
 
 @dataclass(frozen=True)
@@ -63,6 +66,8 @@ class Evidence:
 
     @property
     def verification_origin(self) -> TableOrigin:
+        from .verification import TableOrigin      # start-up (module docstring)
+
         return getattr(self.verification_rows, "origin", None) or TableOrigin("fresh")
 
 
@@ -109,15 +114,20 @@ def analyse(case: Case, service: SolveService | None = None, fields: bool = True
     >>> result.tilt is None and result.wear is None
     True
     """
+    from .solve import SolveService      # start-up (module docstring)
+
     service = service if service is not None else SolveService()
     step = progress or (lambda description: None)
     step("solving the contact")
     solved = service.solve(case, fields=fields)
     hand = hand_of(case)
     comparison = compare_solved(solved, hand)
-    tilt = tilt_result(solved) if solved.tilted is not None else None
-    wear = None
+    tilt = wear = None
+    if solved.tilted is not None:
+        from .analyses.tilt import tilt_result      # start-up (module docstring)
+        tilt = tilt_result(solved)
     if wants_wear(case):
+        from .analyses.wear import wear_in_case     # start-up (module docstring)
         step("wearing the interface in")
         wear = wear_in_case(solved, hand)
     return CaseResult(solved, hand, comparison, tilt, wear)
@@ -126,6 +136,8 @@ def analyse(case: Case, service: SolveService | None = None, fields: bool = True
 def gather_evidence(result: CaseResult, service: SolveService, progress=None) -> Evidence:
     """The mesh study of the run's case (unless switched off) and the stored verification table
     (read, never run here: ``clutchfe verify`` makes it once per installed version and code hash)."""
+    from .verification import load_table      # start-up (module docstring)
+
     step = progress or (lambda description: None)
     step("mesh study (two finer meshes)" if result.case.verification.mesh_study else "mesh study (switched off)")
     study = _mesh_study_or_reason(result, service)
@@ -135,6 +147,8 @@ def gather_evidence(result: CaseResult, service: SolveService, progress=None) ->
 
 
 def _mesh_study_or_reason(result: CaseResult, service: SolveService) -> dict:
+    from .verification.mesh_study import mesh_study      # start-up (module docstring)
+
     if not result.case.verification.mesh_study:
         return {"skipped": "switched off in the case ([verification] mesh_study = false)"}
     try:
@@ -217,6 +231,9 @@ def run_case(case: Case, folder: Path, console, service: SolveService | None = N
     dict
         summary.json as written (see README, "What summary.json holds").
     """
+    from .output.report import write_report      # start-up (module docstring)
+    from .solve import SolveService
+
     service = service if service is not None else SolveService()
     with Progress(transient=True, console=console) as progress:
         step = _Steps(progress, total=8, listener=on_step)
@@ -232,8 +249,11 @@ def run_case(case: Case, folder: Path, console, service: SolveService | None = N
                                                  evidence.verification_passed, report_sections(result, summary, tmp))
             write_json(tmp / "summary.json", summary)       # once, last: every stage has spoken
         step("done")
-    print_table(console, case, summary, folder,
-                extra_tables=[wear_table(summary)] if result.wear is not None else [])
+    extra_tables = []
+    if result.wear is not None:
+        from .analyses.wear import wear_table       # start-up (module docstring)
+        extra_tables.append(wear_table(summary))
+    print_table(console, case, summary, folder, extra_tables=extra_tables)
     return summary
 
 
@@ -241,8 +261,10 @@ def report_sections(result: CaseResult, summary: dict, folder: Path) -> dict:
     """The report section of each analysis that ran, by name."""
     sections = {}
     if result.tilt is not None:
+        from .analyses.tilt.report import tilt_section      # start-up (module docstring)
         sections["tilt"] = tilt_section(summary, folder)
     if result.wear is not None:
+        from .analyses.wear.report import wear_section      # start-up (module docstring)
         sections["wear"] = wear_section(summary, folder, result.wear.results[-1].verdict)
     return sections
 
@@ -253,8 +275,10 @@ def write_case_files(result: CaseResult, folder: Path) -> None:
     write_all(folder, result.case, solved.section, solved.mesh, solved.fe, result.comparison,
               axisymmetric=result.tilt is None)
     if result.tilt is not None:
+        from .analyses.tilt import write_tilt_files     # start-up (module docstring)
         write_tilt_files(result.tilt, folder)
     if result.wear is not None:
+        from .analyses.wear import write_wear_files     # start-up (module docstring)
         write_wear_files(result.wear, result.case, result.hand, folder)
 
 
@@ -322,15 +346,27 @@ def summary_of(result: CaseResult, evidence: Evidence | None = None) -> dict:
                        "element_order": case.mesh.element_order}
     summary["warnings"] = list(case.warnings) + list(comparison.warnings)
     if result.tilt is not None:
+        from .analyses.tilt import tilt_summary_keys        # start-up (module docstring)
         summary.update(tilt_summary_keys(result.tilt))
     if result.wear is not None:
+        from .analyses.wear import wear_summary     # start-up (module docstring)
         keys = wear_summary(result.wear, case)
         summary["warnings"] += keys.pop("wear_warnings")
         summary.update(keys)
     summary["versions"] = versions()
     summary["caution"] = CAUTION
     if evidence is not None:
+        from .verification.store import verification_summary        # start-up (module docstring)
         summary["mesh_study"] = evidence.mesh_study
         summary["verification"] = verification_summary(evidence.verification_rows, evidence.verification_passed)
     _run_verdict(summary, result, evidence)
     return summary
+
+
+def __getattr__(name: str):
+    # PEP 562: ``plan.SolveService``, the solve service a caller hands to analyse and run_case, stays
+    # reachable here without importing the FE stack with this module (start-up, module docstring)
+    if name == "SolveService":
+        from .solve import SolveService
+        return SolveService
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")

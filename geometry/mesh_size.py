@@ -14,7 +14,6 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from matplotlib.path import Path as Polygon
 
 from .mesher import face_node_count
 from .section import Section
@@ -41,6 +40,20 @@ def estimate_triangles(section: Section) -> int:
     return int(math.ceil(total))
 
 
+def _inside(loop: np.ndarray, points: np.ndarray) -> np.ndarray:
+    """Which points lie inside the closed polygon ``loop`` (even-odd rule: a ray towards +r crosses
+    its edges an odd number of times).  numpy only: ``clutchfe check`` runs this and must not
+    import matplotlib for it."""
+    r, z = points[:, 0], points[:, 1]
+    inside = np.zeros(len(points), dtype=bool)
+    for (r0, z0), (r1, z1) in zip(loop, np.roll(loop, -1, axis=0)):
+        if z0 == z1:
+            continue                                # a ray parallel to the edge never crosses it
+        spans = (z0 > z) != (z1 > z)
+        inside ^= spans & (r < r0 + (z - z0) * (r1 - r0) / (z1 - z0))
+    return inside
+
+
 def _body_triangles(section: Section, region, segments, ends, faces) -> float:
     loop = np.array([section.points[p] for p in region.loop], float)
     area, _ = section.region_area_and_moment(region)
@@ -53,7 +66,7 @@ def _body_triangles(section: Section, region, segments, ends, faces) -> float:
     xs = lo[0] + (np.arange(nx) + 0.5) * (hi[0] - lo[0]) / nx
     ys = lo[1] + (np.arange(ny) + 0.5) * (hi[1] - lo[1]) / ny
     grid = np.stack(np.meshgrid(xs, ys), axis=-1).reshape(-1, 2)
-    inside = Polygon(loop).contains_points(grid)
+    inside = _inside(loop, grid)
     if inside.sum() < 50:                        # a sliver the grid misses: its cap size throughout
         return area / (EQUILATERAL * cap * cap)
     # beyond its largest grading distance a face or a lining end no longer sets the size: only the

@@ -80,6 +80,27 @@ def test_the_study_key_table_names_exactly_the_keys_the_loader_accepts():
         assert name in VARY_KEY_MEANINGS["distribution"]
 
 
+# --------------------------------------------------------------------------- check: start-up
+
+# what `clutchfe check` must not import: the plotting stack, the 3D pictures, the study runner, scipy's
+# optimisation and statistics, the FE library (each a large part of a second of CPU at start-up)
+NOT_FOR_CHECK = ("matplotlib", "pyvista", "vtk", "dask", "distributed", "scipy.optimize", "scipy.stats", "skfem")
+
+
+def test_check_starts_without_the_plotting_and_solver_stack(tmp_path):
+    case = write_toml(tmp_path / "small.toml", _small(name="startup"))
+    code = ("import json, sys\n"
+            "from clutchfe._cli import main\n"
+            f"status = main(['-q', 'check', {str(case)!r}])\n"
+            f"heavy = [m for m in {NOT_FOR_CHECK!r} if m in sys.modules]\n"
+            "print(json.dumps({'status': status, 'heavy': heavy}))\n")
+    proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=tmp_path)
+    assert proc.returncode == 0, proc.stderr
+    said = json.loads(proc.stdout.splitlines()[-1])
+    assert said == {"status": 0, "heavy": []}
+    assert "case 'startup' (plate) is valid" in proc.stdout         # the check itself ran
+
+
 # --------------------------------------------------------------------------- init
 
 

@@ -1,4 +1,4 @@
-"""Comparison pictures: files are written, labelled with units, and draw the right curves.
+"""Pictures of a run: files are written, labelled with units, and draw the right curves and fields.
 
 The clutch is a scenario invented for these tests.
 """
@@ -8,6 +8,7 @@ import numpy as np
 import pytest
 
 from clutchfe.comparison import compare, hand_capacity
+from clutchfe.output.files import deformed_picture
 from clutchfe.output.plots import effective_radius_bar, pressure_plot
 
 PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
@@ -96,3 +97,37 @@ def test_effective_radius_bar_refuses_impossible_radii(tmp_path, radii):
     with pytest.raises(ValueError):
         effective_radius_bar(tmp_path / "bad.png", *radii)
     assert not (tmp_path / "bad.png").exists()
+
+
+def test_deformed_picture_draws_the_magnified_section_coloured_by_von_mises(tmp_path):
+    # an invented 10 mm square cut into four triangles at its centre node; P2-like extra node 5 is
+    # carried (a field value, no corner of any triangle); largest displacement 0.02 mm
+    points = np.array([[50.0, 0.0], [60.0, 0.0], [60.0, 10.0], [50.0, 10.0], [55.0, 5.0], [55.0, 0.0]])
+    triangles = np.array([[0, 1, 4, 5], [1, 2, 4, 5], [2, 3, 4, 5], [3, 0, 4, 5]])
+    u = np.array([[0.0, 0.0], [0.01, 0.0], [0.01, -0.02], [0.0, -0.02], [0.005, -0.01], [0.005, 0.0]])
+    von_mises = np.array([0.5, 1.0, 4.0, 2.0, 3.0, 0.7])
+    mesh = type("Mesh", (), {"points": points, "triangles": triangles})()
+    fe = type("Fe", (), {"displacement": u.T, "stress": {"von_mises": von_mises}})()
+    path = tmp_path / "deformed.png"
+    fig = deformed_picture(path, mesh, fe, "demo plate")
+
+    data = path.read_bytes()
+    assert data.startswith(PNG_SIGNATURE) and len(data) > 5000
+    assert fig.get_size_inches() * fig.dpi == pytest.approx([1200, 900])      # the picture's size since pyvista
+    ax, bar = fig.axes
+    scale = 0.04 * 10.0 / 0.02          # the largest displacement drawn as 4 % of the section's size
+    assert [t.get_text() for t in fig.texts] == [f"demo plate: deformed section, displacements x {scale:.0f} "
+                                                 "(grey: unloaded)"]
+    assert bar.get_xlabel() == "von Mises [MPa]"
+    # the coloured field: each triangle's corners moved by scale · u, coloured by von Mises at the nodes
+    (field,) = ax.collections
+    assert np.array_equal(field.get_array(), von_mises)
+    assert (field.norm.vmin, field.norm.vmax) == (0.5, 4.0)
+    moved = points + scale * u
+    drawn = [p.vertices[:3] for p in field.get_paths()]
+    assert np.allclose(drawn, moved[triangles[:, :3]])
+    # the unloaded section as grey edges at the original coordinates
+    edges = ax.get_lines()[0]
+    xy = np.column_stack([edges.get_xdata(), edges.get_ydata()])
+    xy = xy[~np.isnan(xy).any(axis=1)]
+    assert {tuple(p) for p in xy} == {tuple(p) for p in points[:5]}

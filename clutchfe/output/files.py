@@ -9,15 +9,16 @@ from rich.markup import escape
 from rich.table import Table
 
 from ..geometry import section_picture, write_mesh
-from .plots import effective_radius_bar, pressure_plot
-
-STRESS_LABEL = "von Mises [MPa]"
 
 
 def write_all(folder: Path, case, section, mesh, fe, result, axisymmetric: bool = True) -> None:
     """The standard files and pictures (summary.json is the run plan's, written last).  A tilted
     solve has no (r, z) displacement field and its pressure.csv (with theta) comes from the
     tilt analysis, so those are left to it."""
+    # the pictures' libraries are imported here, not at the top: `clutchfe check` imports this module
+    # (through the run plan) and must not pay for matplotlib
+    from .plots import effective_radius_bar, pressure_plot
+
     if axisymmetric:
         write_pressure_csv(folder / "pressure.csv", fe)
         write_solution_vtu(folder / "solution.vtu", mesh, fe)
@@ -75,32 +76,13 @@ def write_solution_vtu(path: Path, mesh, fe) -> None:
     meshio.write(str(path), out, file_format="vtu")
 
 
-def deformed_picture(path: Path, mesh, fe, title: str) -> None:
-    """Deformed section (displacements magnified) coloured by von Mises stress, off-screen."""
-    import pyvista as pv        # here: it costs about a second to import
+def deformed_picture(path: Path, mesh, fe, title: str):
+    """Deformed section (displacements magnified) coloured by von Mises stress; returns the figure."""
+    from .plots import deformed_figure      # here: matplotlib costs ~0.5 s CPU to import (see write_all)
 
-    points = np.column_stack([mesh.points, np.zeros(len(mesh.points))])
-    cells = np.hstack([np.full((len(mesh.triangles), 1), 3), mesh.triangles[:, :3]]).ravel()
-    grid = pv.UnstructuredGrid(cells, np.full(len(mesh.triangles), pv.CellType.TRIANGLE), points)
-    u = fe.displacement.T
-    size = float(np.ptp(mesh.points, axis=0).max())
-    umax = float(np.abs(u).max())
-    scale = 0.04 * size / umax if umax > 0 else 1.0
-    moved = grid.copy()
-    moved.points = points + np.column_stack([u * scale, np.zeros(len(u))])
-    moved.point_data[STRESS_LABEL] = np.asarray(fe.stress["von_mises"])
-    plotter = pv.Plotter(off_screen=True, window_size=(1200, 900))
-    plotter.set_background("white")
-    plotter.add_mesh(grid, style="wireframe", color="lightgray", line_width=0.5)
-    plotter.add_mesh(moved, scalars=STRESS_LABEL, cmap="viridis", show_edges=False,
-                     scalar_bar_args={"title": STRESS_LABEL, "color": "black", "vertical": False,
-                                      "position_x": 0.25, "position_y": 0.04, "width": 0.5, "height": 0.07})
-    plotter.add_text(f"{title}: deformed section, displacements x {scale:.0f} (grey: unloaded)",
-                     font_size=10, color="black")
-    plotter.view_xy()
-    plotter.camera.zoom(1.1)
-    plotter.screenshot(str(path))
-    plotter.close()
+    fig = deformed_figure(mesh.points, mesh.triangles, fe.displacement.T, fe.stress["von_mises"], title)
+    fig.savefig(path, dpi=100)
+    return fig
 
 
 def surface_table(surfaces: list[dict]) -> Table:

@@ -1,4 +1,5 @@
-"""Pictures of the comparison: FE contact pressure against the two hand methods.
+"""Pictures of a run: FE contact pressure against the two hand methods, the effective radii, and
+the deformed section coloured by von Mises stress.
 
 Figures are built on matplotlib's object interface with the Agg canvas, so nothing here
 touches pyplot's global state or needs a display; each function returns the figure it saved
@@ -9,11 +10,13 @@ from __future__ import annotations
 import numpy as np
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
+from matplotlib.tri import Triangulation
 
 from ..comparison import HandCapacity, as_hand_capacity, surface_arrays
 
 RADIUS_LABEL = "radius r [mm]"
 PRESSURE_LABEL = "contact pressure [MPa]"
+STRESS_LABEL = "von Mises [MPa]"
 _MARKERS = ("o", "s", "^", "v", "D", "P", "X")
 
 
@@ -93,4 +96,37 @@ def effective_radius_bar(path, r1: float, r2: float, r_up: float, r_uw: float, r
     """Small bar of the friction annulus with the three effective radii marked, for reports."""
     fig = effective_radius_figure(r1, r2, r_up, r_uw, r_eff)
     fig.savefig(path, dpi=130)
+    return fig
+
+
+def deformed_scale(points: np.ndarray, displacement: np.ndarray) -> float:
+    """Magnification of the displacements: the largest one drawn as 4 % of the section's size."""
+    size = float(np.ptp(points, axis=0).max())
+    umax = float(np.abs(displacement).max())
+    return 0.04 * size / umax if umax > 0 else 1.0
+
+
+def deformed_figure(points: np.ndarray, triangles: np.ndarray, displacement: np.ndarray, von_mises: np.ndarray,
+                    title: str) -> Figure:
+    """The (r, z) section unloaded (grey edges) and deformed (displacements magnified), the deformed one
+    coloured by the von Mises stress at the nodes; ``displacement`` is (nodes, 2), ``triangles`` the
+    corner nodes first (P2 mid-nodes are carried along, not drawn as corners)."""
+    points, displacement = np.asarray(points, float), np.asarray(displacement, float)
+    corners = np.asarray(triangles)[:, :3]
+    scale = deformed_scale(points, displacement)
+    moved = points + scale * displacement
+    # 1200 × 900 px at 100 dpi, as the picture always was; fixed places (no layout engine: it would
+    # measure the hidden axes' ticks, a third of the picture's CPU), the colour bar below the section
+    fig = Figure(figsize=(12.0, 9.0))
+    FigureCanvasAgg(fig)
+    ax = fig.add_axes((0.02, 0.13, 0.96, 0.82))
+    ax.triplot(Triangulation(points[:, 0], points[:, 1], corners), color="0.6", linewidth=0.5,
+               label="unloaded")
+    field = ax.tripcolor(Triangulation(moved[:, 0], moved[:, 1], corners), np.asarray(von_mises, float),
+                         shading="gouraud", cmap="viridis")
+    ax.set_aspect("equal")
+    ax.set_axis_off()
+    fig.text(0.005, 0.995, f"{title}: deformed section, displacements x {scale:.0f} (grey: unloaded)",
+             ha="left", va="top", fontsize=10)
+    fig.colorbar(field, cax=fig.add_axes((0.25, 0.065, 0.5, 0.03)), orientation="horizontal", label=STRESS_LABEL)
     return fig

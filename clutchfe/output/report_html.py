@@ -11,11 +11,11 @@ summary.json.  Everything a user typed is escaped by autoescape.
 from __future__ import annotations
 
 import base64
+import functools
 import html
 import math
 from pathlib import Path
 
-from jinja2 import Environment, FileSystemLoader, StrictUndefined
 from markupsafe import Markup
 
 TEMPLATES = Path(__file__).resolve().parent / "templates"
@@ -37,13 +37,21 @@ def _finalize(value):
     return value if hasattr(value, "__html__") else Markup(esc(value))
 
 
-ENV = Environment(loader=FileSystemLoader(TEMPLATES), autoescape=True, undefined=StrictUndefined,
-                  finalize=_finalize, trim_blocks=True, lstrip_blocks=True, keep_trailing_newline=True)
+@functools.cache
+def environment():
+    """The templates' jinja2 environment, made on first use: jinja2 is imported then, not by the
+    commands that only import this module on the way (``clutchfe check``: start-up)."""
+    from jinja2 import Environment, FileSystemLoader, StrictUndefined
+
+    env = Environment(loader=FileSystemLoader(TEMPLATES), autoescape=True, undefined=StrictUndefined,
+                      finalize=_finalize, trim_blocks=True, lstrip_blocks=True, keep_trailing_newline=True)
+    env.globals.update(num=num, sig=sig, data_uri=data_uri)     # what every template may call
+    return env
 
 
 def render(template: str, **context) -> Markup:
     """A template of ``templates/`` rendered with ``context`` (markup: a section of the page)."""
-    return Markup(ENV.get_template(template).render(**context))
+    return Markup(environment().get_template(template).render(**context))
 
 
 def data_uri(path: Path) -> str | None:
@@ -76,21 +84,17 @@ def table(header: list[str], rows: list[list[str]], numeric_from: int = 1) -> st
     """For callers that build HTML strings themselves (cells and headers are HTML already, escaped
     by the caller): the table of templates/macros.html as a plain string (a plain string added to
     markup would be escaped).  Templates call the macro directly."""
-    macro = ENV.get_template("macros.html").module.table
+    macro = environment().get_template("macros.html").module.table
     return str.__str__(macro([Markup(h) for h in header], [[Markup(c) for c in row] for row in rows], numeric_from))
 
 
 def picture(path: Path, alt: str, caption: str) -> str:
     """For callers that build HTML strings themselves (``caption`` is HTML already): the picture
     of templates/macros.html as a plain string.  Templates call the macro directly."""
-    macro = ENV.get_template("macros.html").module.picture
+    macro = environment().get_template("macros.html").module.picture
     return str.__str__(macro(data_uri(path), Path(path).name, alt, caller=lambda: Markup(caption)))
 
 
 def page(title: str, body: str) -> str:
     """The whole page (templates/page.html) around ``body``, HTML already (escaped by the caller)."""
-    return ENV.get_template("page.html").render(title=title, body=Markup(body))
-
-
-# what every template may call
-ENV.globals.update(num=num, sig=sig, data_uri=data_uri)
+    return environment().get_template("page.html").render(title=title, body=Markup(body))
