@@ -17,10 +17,11 @@ if "CLUTCHFE_CACHE_DIR" not in os.environ:
     import tempfile
     os.environ["CLUTCHFE_CACHE_DIR"] = tempfile.mkdtemp(prefix="clutchfe-test-cache-")
 
-# CI explores the same examples every run (same input, same output); local runs keep exploring
+# every run of the test command explores the same examples (same input, same output, on any
+# machine); CLUTCHFE_EXPLORE=1 lets Hypothesis search new ones (and the fuzz benchmark does)
 settings.register_profile("ci", derandomize=True, deadline=None)
-if os.environ.get("CI"):
-    settings.load_profile("ci")
+settings.register_profile("explore", deadline=None)
+settings.load_profile("explore" if os.environ.get("CLUTCHFE_EXPLORE") else "ci")
 
 
 @pytest.fixture

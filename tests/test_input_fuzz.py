@@ -18,9 +18,9 @@ shown, a UTF-8 byte-order mark), a few cases through the console script in a sub
 slow test that runs accepted generated cases end to end.  tests/benchmarks/bench_fuzz.py draws
 many more inputs from the same generators (``case_inputs``) and counts the answers.
 
-Hypothesis runs derandomised under the "ci" profile (tests/conftest.py, with CI set): CI checks the
-same slice every run, local runs keep exploring.  A failing example found belongs in
-``REGRESSIONS`` below, as a plain test.
+Hypothesis runs derandomised under the "ci" profile (tests/conftest.py): every run of the test
+command checks the same slice; CLUTCHFE_EXPLORE=1 searches new examples.  A failing example
+found belongs in ``REGRESSIONS`` below, as a plain test.
 """
 from __future__ import annotations
 
