@@ -44,10 +44,9 @@ from typing import Sequence
 import numpy as np
 from skfem import LinearForm, asm
 
-from ._threads import one_blas_thread
-from .assembly import System, assemble
+from .assembly import System
+from .extra_load import linear_solve_with
 from .model import FeModel
-from .solve import Prepared
 from .stress import quadrature_stress, vertex_stress
 
 STEEL_DENSITY = 7.85e-9      # t/mm³ (7850 kg/m³), for examples and tests
@@ -105,12 +104,7 @@ def linear_solve_at_speed(model: FeModel, density: Sequence[float],
     which a load without axial resultant does not need).  At ``omega = 0`` the result is
     linear_solve's to the last bit.  Returns the assembled system and all dofs' u (mm).
     """
-    with one_blas_thread():
-        system = assemble(model)
-        f = system.f + centrifugal_load(system, density, omega)
-        prep = Prepared(system, {})
-        u = prep.expand(prep.lu.solve(f[prep.inner]), np.zeros(len(prep.free_bodies)))
-    return system, u
+    return linear_solve_with(model, lambda system: centrifugal_load(system, density, omega))
 
 
 def hoop_and_von_mises(system: System, u: np.ndarray) -> dict[str, np.ndarray]:
