@@ -68,13 +68,15 @@ def _r(x, nd=2):
 RADIUS_RANGE = dict(low=2.0, high=2500.0, low_inclusive=True, high_inclusive=True,
                     why="from a 2 mm instrument clutch to a 5 m marine or mill clutch (common practice); "
                         "radii are in mm, so a value below 2 is often one typed in metres")
-PART_RADIUS_RANGE = dict(low=0.0, high=3000.0, high_inclusive=True,
-                         why="a part radius within 3 m of the axis (the largest clutches, common practice)")
+PART_RADIUS_RANGE = dict(low=0.01, high=3000.0, low_inclusive=True, high_inclusive=True,
+                         why="a part radius within 3 m of the axis (the largest clutches, common practice), "
+                             "at least 0.01 mm (below machining tolerance)")
 THICKNESS_RANGE = dict(low=0.2, high=2000.0, low_inclusive=True, high_inclusive=True,
                        why="no clutch part is thinner than 0.2 mm (thin separator plates are ~1 mm, common "
                            "practice); a value below is often one typed in metres")
-LENGTH_RANGE = dict(low=0.0, high=3000.0, high_inclusive=True,
-                    why="a length within 3 m (the largest clutches, common practice)")
+LENGTH_RANGE = dict(low=0.01, high=3000.0, low_inclusive=True, high_inclusive=True,
+                    why="a length within 3 m (the largest clutches, common practice), at least 0.01 mm "
+                        "(below machining tolerance)")
 BODY_MODULUS_RANGE = dict(low=10000.0, high=700000.0, low_inclusive=True, high_inclusive=True,
                           why="metals and fibre composites the bodies are made of: from ~10 GPa (glass-fibre "
                               "composite) over magnesium ~45, aluminium ~70, cast iron 90–170, steel ~210 to "

@@ -50,7 +50,8 @@ def _inside(loop: np.ndarray, points: np.ndarray) -> np.ndarray:
         if z0 == z1:
             continue                                # a ray parallel to the edge never crosses it
         spans = (z0 > z) != (z1 > z)
-        inside ^= spans & (r < r0 + (z - z0) * (r1 - r0) / (z1 - z0))
+        with np.errstate(over="ignore"):            # a nearly level edge: the crossing is far off, as it should be
+            inside ^= spans & (r < r0 + (z - z0) * ((r1 - r0) / (z1 - z0)))
     return inside
 
 
