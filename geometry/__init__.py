@@ -10,6 +10,7 @@ from .mesher import SectionMesh, face_node_count, mesh_section
 from .output import section_picture, write_mesh
 from .plates import plate_section
 from .section import Body, FrictionInterface, GeometryError, Region, Section, check_section
+from .section_file import SectionFileSpec, read_section
 
 SECTION_BUILDERS = {"cone": cone_section, "plate": plate_section}
 
@@ -32,4 +33,4 @@ def build_section(case) -> Section:
 
 __all__ = ["Body", "FrictionInterface", "GeometryError", "Region", "Section", "SectionMesh",
            "SECTION_BUILDERS", "build_section", "check_section", "cone_section", "estimate_triangles", "face_node_count",
-           "mesh_section", "plate_section", "section_picture", "write_mesh"]
+           "mesh_section", "plate_section", "read_section", "SectionFileSpec", "section_picture", "write_mesh"]
