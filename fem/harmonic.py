@@ -10,7 +10,7 @@ so every (r, z) node carries three amplitudes.  The strains are linear in n,
     ε_rr = U_r,r   ε_zz = U_z,z   ε_θθ = (U_r + n U_θ)/r   γ_rz = U_r,z + U_z,r      (× cos nθ)
     γ_rθ = (U_θ,r − U_θ/r − n U_r/r)   γ_zθ = (U_θ,z − n U_z/r)                      (× sin nθ)
 
-so K(n) = K_a + n K_b + n² K_c is assembled once from three sample harmonics.
+so K(n) = K_a + n K_b + n² K_c, whose three parts are assembled once (:func:`harmonic_parts`).
 Weight: the θ integral of cos² is π for n ≥ 1; the forms carry 2π r (as fem/forms.py) so
 that the nodal force of harmonic n is F_n = 2π Q_n for a line load Q_n cos nθ (N/rad),
 the same convention as n = 0, where F_0 is the ring's total force.
@@ -54,6 +54,58 @@ def harmonic_face_spring(u, v, w):
     return w.k_area * u[w.d] * v[w.d] * 2.0 * np.pi * w.x[0]
 
 
+def harmonic_parts(basis: Basis, model) -> tuple[sp.csr_matrix, sp.csr_matrix, sp.csr_matrix]:
+    """K_a, K_b, K_c of :func:`harmonic_elasticity` (K(n) = K_a + n K_b + n² K_c) on the 3-component
+    ``basis``, in one pass over the elements.
+
+    The strains of harmonic n are B⁰ + n B¹ applied to the element's dofs (module docstring), so
+    the element matrix ∫ Bᵀ D B 2π r is K_a = ∫ B⁰ᵀ D B⁰, K_b = ∫ (B⁰ᵀ D B¹ + B¹ᵀ D B⁰), K_c = ∫ B¹ᵀ D B¹;
+    evaluated here as batched products of the scalar shape functions (the same quadrature as
+    ``basis``) instead of three assemblies of the form at n = 0, 1, 2: measured in
+    docs/solver-notes.md, checked against skfem's assembly of the form in tests/test_harmonic.py.
+    """
+    mesh = basis.mesh
+    sb = Basis(mesh, basis.elem.elem, quadrature=basis.quadrature)
+    vmap = np.empty((sb.N, 3), dtype=np.int64)
+    for c in range(3):
+        vmap[sb.nodal_dofs[0], c] = basis.nodal_dofs[c]
+        if sb.facet_dofs.size:
+            vmap[sb.facet_dofs[0], c] = basis.facet_dofs[c]
+    nb = len(sb.basis)
+    dofs = vmap[sb.element_dofs].transpose(1, 0, 2).reshape(-1, 3 * nb)      # (elements, local dof 3 i + c)
+    lam, mu = lame(np.asarray(model.element_youngs_modulus, float), np.asarray(model.element_poissons_ratio, float))
+    r = np.asarray(sb.global_coordinates())[0]
+    w = 2.0 * np.pi * r * sb.dx                                                # (elements, points)
+    parts = [[], [], []]
+    for e0 in range(0, mesh.t.shape[1], 2048):                                  # bounded memory
+        e = slice(e0, e0 + 2048)
+        phi = np.array([np.asarray(f[0])[e] for f in sb.basis])                # (i, elements, points)
+        grad = np.array([f[0].grad[:, e] for f in sb.basis])                   # (i, 2, elements, points)
+        rr = r[e]
+        # strains rr, zz, θθ, rz, rθ, zθ and their sum (the λ term), of component c of function i
+        B0 = np.zeros((7, nb, 3) + phi.shape[1:])
+        B1 = np.zeros_like(B0)
+        B0[0, :, 0], B0[2, :, 0], B0[3, :, 0], B1[4, :, 0] = grad[:, 0], phi / rr, grad[:, 1], -phi / rr
+        B0[1, :, 1], B0[3, :, 1], B1[5, :, 1] = grad[:, 1], grad[:, 0], -phi / rr
+        B1[2, :, 2], B0[4, :, 2], B0[5, :, 2] = phi / rr, grad[:, 0] - phi / rr, grad[:, 1]
+        B0[6], B1[6] = B0[0] + B0[1] + B0[2], B1[0] + B1[1] + B1[2]
+        m, lm = mu[e][:, None] * w[e], lam[e][:, None] * w[e]
+        weight = np.stack([2 * m, 2 * m, 2 * m, m, m, m, lm])                  # (7, elements, points)
+        # (elements, local dofs, strains × points) for the batched products
+        b0 = B0.reshape(7, 3 * nb, *phi.shape[1:]).transpose(2, 1, 0, 3).reshape(phi.shape[1], 3 * nb, -1)
+        b1 = B1.reshape(7, 3 * nb, *phi.shape[1:]).transpose(2, 1, 0, 3).reshape(phi.shape[1], 3 * nb, -1)
+        wt = weight.transpose(1, 0, 2).reshape(phi.shape[1], 1, -1)
+        cross = b0 @ (b1 * wt).transpose(0, 2, 1)
+        parts[0].append(b0 @ (b0 * wt).transpose(0, 2, 1))
+        parts[1].append(cross + cross.transpose(0, 2, 1))
+        parts[2].append(b1 @ (b1 * wt).transpose(0, 2, 1))
+    L = 3 * nb
+    rows = np.repeat(dofs, L, axis=1).ravel()
+    cols = np.tile(dofs, (1, L)).ravel()
+    return tuple(sp.coo_matrix((np.concatenate(p).ravel(), (rows, cols)), shape=(basis.N, basis.N)).tocsr()
+                 for p in parts)
+
+
 class HarmonicStiffness:
     """K(n) = K_a + n K_b + n² K_c of the model's bodies and spring supports, 3 dofs a node.
 
@@ -66,14 +118,8 @@ class HarmonicStiffness:
         self.system = system
         mesh, model = system.mesh, system.model
         self.basis = Basis(mesh, ElementVector(element_for(model.element_order), dim=3))
-        nqp = self.basis.X.shape[1]
-        E = np.repeat(np.asarray(model.element_youngs_modulus, float)[:, None], nqp, 1)
-        nu = np.repeat(np.asarray(model.element_poissons_ratio, float)[:, None], nqp, 1)
-        K0, K1, K2 = (asm(harmonic_elasticity, self.basis, E=E, nu=nu, n=float(n)) for n in (0, 1, 2))
-        springs = self._springs()
-        self._c = 0.5 * (K2 - 2.0 * K1 + K0)
-        self._b = K1 - K0 - self._c
-        self._a = (K0 + springs).tocsr()
+        Ka, self._b, self._c = harmonic_parts(self.basis, model)
+        self._a = (Ka + self._springs()).tocsr()
         b2 = system.basis
         self.dof3 = np.full(b2.N, -1, dtype=np.int64)
         for comp in (0, 1):
@@ -137,20 +183,23 @@ class HarmonicStiffness:
     def axis_tie(self, n: int) -> sp.csr_matrix:
         """Map u = T u' that eliminates U_θ on the axis for n = 1 (U_θ = −U_r there)."""
         N = self.basis.N
-        T = sp.identity(N, format="lil")
-        if n == 1:
-            nodes = self.axis_nodes()
-            for r_dof, t_dof in zip(self.node_dofs(nodes, 0), self.node_dofs(nodes, 2)):
-                T[t_dof, t_dof] = 0.0
-                T[t_dof, r_dof] = -1.0
-        return T.tocsr()
+        if n != 1:
+            return sp.identity(N, format="csr")
+        nodes = self.axis_nodes()
+        r_dof, t_dof = self.node_dofs(nodes, 0), self.node_dofs(nodes, 2)
+        rows = np.ones(N, dtype=bool)
+        rows[t_dof] = False
+        rows = np.flatnonzero(rows)
+        return sp.csr_matrix((np.concatenate([np.ones(rows.size), -np.ones(t_dof.size)]),
+                              (np.concatenate([rows, t_dof]), np.concatenate([rows, r_dof]))), shape=(N, N))
 
 
 def _factor_solve(K, B):
     from scipy.sparse.linalg import splu
+
+    from .condense import SUPERLU
     # same ordering choice as fem/solve.py (docs/solver-notes.md)
-    lu = splu(sp.csc_matrix(K), permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
-              options=dict(SymmetricMode=True))
+    lu = splu(sp.csc_matrix(K), permc_spec="MMD_AT_PLUS_A", **SUPERLU)
     return lu.solve(np.asarray(B.toarray() if sp.issparse(B) else B))
 
 
@@ -164,24 +213,53 @@ def harmonic_compliance(hs: HarmonicStiffness, n: int, G3: sp.spmatrix, pins: np
     ``normals`` (m, 2) list the contact nodes' r, z dofs for the trailing-block condensation
     of fem/condense.py, with one solve per contact force where it does not apply.
     """
-    from .condense import condense
+    return harmonic_compliances(hs, [n], G3, pins, node_dofs, normals)[0]
 
-    T = hs.axis_tie(n)
-    K = (T.T @ hs.matrix(n) @ T).tocsr()
-    G = (T.T @ G3).tocsc()
-    keep = np.ones(hs.basis.N, dtype=bool)
-    keep[hs.held(n)] = False
-    keep[pins] = False
-    inner = np.flatnonzero(keep)
-    Ki = K[inner][:, inner].tocsc()
-    Gi = G[inner]
-    position = np.full(hs.basis.N, -1, dtype=np.int64)
-    position[inner] = np.arange(inner.size)
-    fast = condense(Ki, position[node_dofs], normals) if node_dofs.size else None
-    if fast is not None:
-        return fast.compliance(Gi)
-    C = Gi.T @ _factor_solve(Ki, Gi)
-    return 0.5 * (C + C.T)
+
+def harmonic_compliances(hs: HarmonicStiffness, harmonics, G3: sp.spmatrix, pins: np.ndarray,
+                         node_dofs: np.ndarray, normals: np.ndarray) -> list[np.ndarray]:
+    """:func:`harmonic_compliance` of every n in ``harmonics`` (all ≥ 1).
+
+    The harmonics n ≥ 2 hold the same dofs, so their K(n) = K_a + n K_b + n² K_c share one
+    pattern: one :class:`fem.condense.Condenser` rotates it, and the ordering the first of them
+    finds is kept for the others (each further harmonic is one factorisation, docs/solver-notes.md).
+    """
+    from .condense import Condenser
+
+    harmonics = [int(n) for n in harmonics]
+    if min(harmonics, default=1) < 1:
+        raise ValueError("harmonics n >= 1 expected (n = 0 is the axisymmetric model)")
+    out = {}
+    for group in ([n for n in harmonics if n == 1], sorted({n for n in harmonics if n >= 2})):
+        if not group:
+            continue
+        T = hs.axis_tie(group[0])
+        keep = np.ones(hs.basis.N, dtype=bool)
+        keep[hs.held(group[0])] = False
+        keep[pins] = False
+        inner = np.flatnonzero(keep)
+        if group[0] == 1:
+            parts, coefficients = [(T.T @ hs.matrix(1) @ T).tocsr()], (lambda n: (1.0,))
+            G = (T.T @ G3).tocsc()
+        else:
+            parts, coefficients = [hs._a, hs._b, hs._c], (lambda n: (1.0, float(n), float(n * n)))
+            G = sp.csc_matrix(G3)
+        parts = [K[inner][:, inner].tocsc() for K in parts]
+        Gi = G[inner]
+        position = np.full(hs.basis.N, -1, dtype=np.int64)
+        position[inner] = np.arange(inner.size)
+        condenser = Condenser.of(parts, position[node_dofs], normals) if node_dofs.size else None
+        rows = None
+        for n in group:
+            fast = condenser.condense(coefficients(n)) if condenser is not None else None
+            if fast is not None:
+                rows = fast.normal_rows(Gi) if rows is None else rows
+                out[n] = fast.compliance(Gi, rows)
+                continue
+            Ki = sum(c * K for c, K in zip(coefficients(n), parts)).tocsc()
+            C = Gi.T @ _factor_solve(Ki, Gi)
+            out[n] = 0.5 * (C + C.T)
+    return [out[n] for n in harmonics]
 
 
 def harmonic_solve(hs: HarmonicStiffness, n: int, f: np.ndarray, pins: np.ndarray | None = None) -> np.ndarray:

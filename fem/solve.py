@@ -2,6 +2,7 @@
 interface normal forces, exact solution of the small contact problem."""
 from __future__ import annotations
 
+import functools
 import time
 from contextlib import contextmanager
 
@@ -95,7 +96,6 @@ class Prepared:
         keep[system.fixed] = False
         keep[pins] = False
         self.inner = np.flatnonzero(keep)
-        self.K = system.K[self.inner][:, self.inner].tocsc()
         self.lu = None
         if factor:
             with _clock(timings, "factorisation"):
@@ -104,6 +104,15 @@ class Prepared:
         for c, j in enumerate(self.free_bodies):
             T[axial_dofs_of_body(system, j), c] = 1.0
         self.T = T                                   # rigid axial translation of free bodies
+
+    @functools.cached_property
+    def K(self):
+        """The stiffness on the free dofs (built when first asked for: the condensation builds its
+        own rotated copy and never needs this one, docs/solver-notes.md)."""
+        return self.free_stiffness()
+
+    def free_stiffness(self):
+        return self.system.K[self.inner][:, self.inner].tocsc()
 
     def expand(self, u_inner, delta):
         u = np.zeros(self.system.basis.N)
@@ -164,6 +173,8 @@ class ContactSolver:
                     self.C = 0.5 * (C + C.T)
                     self._solve_K = prep.lu.solve
                 self.g_load = self.Gi.T @ self.u_load
+                # stored entries of the factors kept for the solves (benchmarks print their size)
+                self.factor_nonzeros = int((fast.lu if fast is not None else prep.lu).nnz)
                 nb = len(prep.free_bodies)
                 self.B = (self.G.T @ prep.T) if nb else np.zeros((self.g0.size, 0))
                 self.e = system.body_load[prep.free_bodies]
@@ -232,7 +243,8 @@ def _condensation(prep: Prepared, faces: list[PairedFace]):
     position[prep.inner] = np.arange(prep.inner.size)
     node_dofs = np.vstack([position[f.dofs_a] for f in faces] + [position[f.dofs_b] for f in faces])
     normals = np.vstack([np.tile(_unit_normal(f), (f.dofs_a.shape[0], 1)) for f in faces] * 2)
-    return condense(prep.K, node_dofs, normals)
+    # a copy of its own that condense can drop once it has rotated it (peak memory)
+    return condense(prep.free_stiffness(), node_dofs, normals)
 
 
 def _unit_normal(face: PairedFace) -> np.ndarray:

@@ -33,7 +33,7 @@ import scipy.sparse as sp
 from threadpoolctl import ThreadpoolController, threadpool_limits
 
 from .fft_contact import CirculantCompliance, solve_grid_contact
-from .harmonic import HarmonicStiffness, harmonic_compliance
+from .harmonic import HarmonicStiffness, harmonic_compliances
 from .model import FeModel, InterfaceResult, RingLoad
 from .solve import ContactSolver
 
@@ -151,9 +151,7 @@ class TiltedContactSolver:
             pins = np.concatenate([hs.basis.nodal_dofs[:2, v] for v in self.guide.values()]) \
                 if self.guide else np.zeros(0, np.int64)
             self.timings["prepare_axisymmetric"] = time.perf_counter() - t0
-            C = [base.C]
-            for n in range(1, grid // 2 + 1):
-                C.append(harmonic_compliance(hs, n, self.G3, pins, node_dofs, normals))
+            C = [base.C] + harmonic_compliances(hs, range(1, grid // 2 + 1), self.G3, pins, node_dofs, normals)
             self.op = CirculantCompliance(np.array(C))
         self.timings["prepare"] = time.perf_counter() - t0
         self.theta = 2.0 * np.pi * np.arange(grid) / grid
