@@ -4,12 +4,15 @@ Every case ``clutchfe check`` accepts solves within bounded time and memory on t
 machine the tool is made for.  The bound is the triangle count the mesh controls imply
 (:func:`clutchfe.geometry.estimate_triangles`, within −15 %/+5 % of gmsh's on the demo
 cases), on the run's finest mesh: the mesh study's last mesh is ``ratio⁴`` times the run's.
-Measured on the 2-core machine (one solve, P2, docs/solver-notes.md):
+Measured on the 2-core machine (one solve, P2, after the in-place Schur read of fem/condense.py;
+docs/limits.md):
 
-* axisymmetric: 85 000 triangles take 21 s CPU and 2.3 GB, so 60 000 keeps one solve
-  under ~1.7 GB and ~15 s;
-* tilt or offset (the (r, θ) contact grid): 15 500 triangles take 1.2 GB and about 1.1 s
-  CPU per angular division (53 s at 48), so 20 000 keeps it under ~1.6 GB.
+* axisymmetric: 100 000 triangles (estimated) took 15.8 s CPU and 1.7 GB, 60 000 took 8.6 s and
+  1.0 GB, so 100 000 keeps one solve under ~1.8 GB;
+* tilt or offset (the (r, θ) contact grid): 15 500 triangles took 1.2 GB and about 1.1 s CPU per
+  angular division before the shared harmonic ordering, so 20 000 keeps it under ~1.6 GB;
+* contact nodes: the condensed contact holds dense matrices of their number squared: 4660 took
+  1.76 GB (a 0.1 mm lining), 6160 took 2.6 GB (a 40-face pack).
 """
 from __future__ import annotations
 
@@ -17,11 +20,11 @@ from .case import Case
 from .errors import CaseError
 from .geometry import Section, estimate_triangles, face_node_count
 
-MAX_TRIANGLES = 60000           # one axisymmetric solve
+MAX_TRIANGLES = 100000          # one axisymmetric solve
 MAX_TRIANGLES_TILTED = 20000    # one solve on the (r, θ) grid
 # the contact solve condenses the stiffness onto the normal displacement of every friction-face
-# node (fem/condense.py): dense m × m arrays; measured 1.9 GB peak at m = 4800 (a 0.1 mm lining)
-MAX_CONTACT_NODES = 4000
+# node (fem/condense.py): dense m × m arrays; measured 1.76 GB peak at m = 4660 (a 0.1 mm lining)
+MAX_CONTACT_NODES = 4700
 
 
 def finest_factor(case: Case) -> float:
@@ -50,7 +53,7 @@ def check_mesh_budget(case: Case, section: Section, with_mesh_study: bool = True
         f"mesh.interface_element_size = {case.mesh.interface_element_size:g}: with mesh.edge_element_size = "
         f"{case.mesh.edge_element_size:g}, mesh.element_size = {case.mesh.element_size:g} mm and mesh.refinement "
         f"= {case.mesh.refinement:g} the mesh controls give about {finest:.3g} triangles on {where}; allowed: at "
-        f"most {limit} for {solve} (about 1.7 GB on a 2-core machine): coarser sizes, a lower refinement"
+        f"most {limit} for {solve} (about 1.8 GB on a 2-core machine): coarser sizes, a lower refinement"
         + (", or verification.mesh_study = false" if factor > 1 else "")
         + " (mesh sizes not given follow lining.thickness and the face width: clutchfe keys)"])
 
@@ -72,6 +75,6 @@ def _check_contact_nodes(case: Case, section: Section, factor: float) -> None:
         f"mesh.interface_element_size = {case.mesh.interface_element_size:g}: on {faces} friction face"
         f"{'s' if faces > 1 else ''} (interface.friction_surfaces = {case.interface.friction_surfaces}) it gives "
         f"about {nodes:.3g} contact nodes on the run's finest mesh; allowed: at most {MAX_CONTACT_NODES} (the "
-        f"contact solve holds dense matrices of their number squared, about 1.5 GB at the limit): a coarser "
+        f"contact solve holds dense matrices of their number squared, about 1.8 GB at the limit): a coarser "
         f"mesh.interface_element_size, mesh.element_order = 1"
         + (", or verification.mesh_study = false" if factor > 1 else "")])

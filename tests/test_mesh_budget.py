@@ -56,7 +56,7 @@ def test_a_mesh_too_large_is_refused_before_gmsh_runs(monkeypatch):
 
 def test_the_mesh_study_counts_its_finest_mesh():
     # the same controls pass without the mesh study's two finer meshes (ratio 1.5: the finest has 1.5⁴ ≈ 5×)
-    controls = {"refinement": 3.0}
+    controls = {"refinement": 3.6}
     case = case_from_dict(with_tables(PLATE, mesh=controls))
     estimate = estimate_triangles(build_section(case))
     assert estimate < MAX_TRIANGLES < estimate * 1.5 ** 4
