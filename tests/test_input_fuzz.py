@@ -888,7 +888,7 @@ def test_200000_unknown_keys_give_a_short_answer(tmp_path):
     assert found == []
     assert outcome.status == 2
     problems = _only_problems(outcome)
-    assert 1 <= len(problems) <= 60
+    assert 0 < len(problems) <= 60
     if len(problems) > 1:       # per key: the first ones, then how many more
         more = SUMMARY.match(problems[-1])
         assert more, problems[-1]
