@@ -192,8 +192,18 @@ def _overlap_point(pa, pb):
             if _proper_cross(p1, p2, q1, q2, eps):
                 return tuple((p1 + p2) / 2)
     for poly, other in ((pa, pb), (pb, pa)):
+        # a point just inside each edge's midpoint too: two regions drawn on top of each other share
+        # every corner and edge midpoint, and only a point off the boundary tells them apart
+        turn = 1.0 if _signed_area(poly) > 0 else -1.0
         for p1, p2 in _segments(poly):
-            for probe in (p1, 0.5 * (p1 + p2)):
+            edge = p2 - p1
+            inward = turn * np.array([-edge[1], edge[0]]) / max(float(np.hypot(*edge)), 1e-300)
+            for probe in (p1, 0.5 * (p1 + p2), 0.5 * (p1 + p2) + 1e-6 * scale * inward):
                 if _inside(probe, other, tol):
                     return tuple(probe)
     return None
+
+
+def _signed_area(poly) -> float:
+    r, z = poly[:, 0], poly[:, 1]
+    return 0.5 * float((r * np.roll(z, -1) - np.roll(r, -1) * z).sum())

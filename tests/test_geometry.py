@@ -217,3 +217,29 @@ def test_mesh_command_writes_a_readable_vtu_and_a_picture(tmp_path, capsys):
     names = (out / "mesh.vtu.names.txt").read_text()
     assert "s4_pressure_plate_face" in names and "counter_plate_back" in names
     assert (out / "section.png").stat().st_size > 20_000
+
+
+def _squares_section(*corners):
+    """Unit squares with lower-left corners at ``corners`` (r, z), one region each."""
+    from clutchfe.geometry import Region, Section
+    points, regions = [], []
+    for k, (r, z) in enumerate(corners):
+        base = len(points)
+        points += [(r, z), (r + 1.0, z), (r + 1.0, z + 1.0), (r, z + 1.0)]
+        regions.append(Region(f"part{k}", f"part{k}", 2e5, 0.3, [base, base + 1, base + 2, base + 3], [None] * 4))
+    return Section(kind="plate", points=points, regions=regions, bodies=[], interfaces=[], load_face="",
+                   axial_force=1.0, ring_radius=None, support_axial_face="", support_radial_face="",
+                   semi_cone_angle=90.0)
+
+
+def test_overlapping_regions_are_refused_touching_ones_are_not():
+    # two unit squares: apart, sharing an edge, sharing a corner (fine), overlapping by half (refused)
+    from clutchfe.geometry import GeometryError, check_section
+    for corners in [((5, 0), (7, 0)), ((5, 0), (6, 0)), ((5, 0), (6, 1))]:
+        check_section(_squares_section(*corners))
+    with pytest.raises(GeometryError) as exc:
+        check_section(_squares_section((5, 0), (5.5, 0.25)))
+    assert "bodies overlap: part0 and part1" in exc.value.problems[0]
+    # the same square twice: no edge crosses another, the overlap is found by the inside probes
+    with pytest.raises(GeometryError):
+        check_section(_squares_section((5, 0), (5, 0)))
