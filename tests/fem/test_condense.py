@@ -4,29 +4,14 @@ import scipy.sparse as sp
 from scipy.sparse.linalg import spsolve
 
 from clutchfe.case import case_from_dict
-from clutchfe.fem import assemble
 from clutchfe.fem.condense import condense
-from clutchfe.fem.pairing import gap_operator, pair_face
-from clutchfe.fem.solve import Prepared, _condensation
-from clutchfe.geometry import mesh_section
-from clutchfe.solve import fe_model_of
-from clutchfe.plan import section_of
+from clutchfe.fem.solve import _condensation
 
-CONE = {"kind": "cone",
-        "interface": {"inner_radius": 40.0, "outer_radius": 50.0, "semi_cone_angle": 20.0,
-                      "friction_coefficient": 0.2, "friction_surfaces": 1},
-        "load": {"axial_force": 1000.0}}
-
+from tests.helpers.solving import CONDENSE_CONE, condensation_problem, model_of
 
 def _system():
-    case = case_from_dict(CONE)
-    section = section_of(case)
-    model = fe_model_of(case, section, mesh_section(section))
-    system = assemble(model)
-    faces = [pair_face(system, p) for p in model.contacts]
-    G, _ = gap_operator(system, faces)
-    prep = Prepared(system, {}, factor=False)
-    return prep, faces, G[prep.inner]
+    prep, faces, Gi, _ = condensation_problem(model_of(case_from_dict(CONDENSE_CONE)))
+    return prep, faces, Gi
 
 
 def test_trailing_block_gives_the_compliance_and_the_solves():

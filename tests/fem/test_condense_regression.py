@@ -9,25 +9,14 @@ import dataclasses
 
 import numpy as np
 import pytest
-from scipy.sparse.linalg import spsolve
 
 from clutchfe.case import case_from_dict, load_case
-from clutchfe.fem import assemble
 from clutchfe.fem import condense as cm
-from clutchfe.fem.pairing import gap_operator, pair_face
-from clutchfe.fem.solve import Prepared, _condensation
-from clutchfe.geometry import mesh_section
-from clutchfe.plan import section_of
-from clutchfe.solve import fe_model_of
+from clutchfe.fem.solve import _condensation
 
 from tests.helpers.data import ROOT
 from tests.helpers.models import Section, graded
-
-CONE = {"kind": "cone",
-        "interface": {"inner_radius": 40.0, "outer_radius": 50.0, "semi_cone_angle": 20.0,
-                      "friction_coefficient": 0.2, "friction_surfaces": 1},
-        "load": {"axial_force": 1000.0}}
-
+from tests.helpers.solving import CONDENSE_CONE, condensation_problem, model_of
 
 def _multiplate():
     # four lined discs between separators: nine bodies, eight faces, floating bodies (coarser mesh)
@@ -36,15 +25,7 @@ def _multiplate():
 
 
 def _problem(case):
-    section = section_of(case)
-    model = fe_model_of(case, section, mesh_section(section))
-    system = assemble(model)
-    faces = [pair_face(system, p) for p in model.contacts]
-    G, _ = gap_operator(system, faces)
-    prep = Prepared(system, {}, factor=False)
-    Gi = G[prep.inner]
-    reference = Gi.T @ spsolve(prep.K.tocsc(), Gi.toarray())
-    return prep, faces, Gi, reference
+    return condensation_problem(model_of(case))
 
 
 @pytest.fixture(scope="module", params=["cone", pytest.param("multiplate", marks=pytest.mark.slow)])
@@ -52,7 +33,7 @@ def problem(request):
     if request.param == "cone":
         # refined so that the trailing block spans several supernodes (part of U22 then sits in
         # SuperLU's compressed U, not in the supernodes)
-        case = case_from_dict(CONE)
+        case = case_from_dict(CONDENSE_CONE)
         return _problem(dataclasses.replace(case, mesh=dataclasses.replace(case.mesh, refinement=2.0))) + (1e-9,)
     # soft 0.8 mm linings between steel plates: K is ill-conditioned enough that two exact methods
     # differ by about 1e-9 of the largest entry (measured: the condensation before this change against
@@ -116,12 +97,7 @@ def test_interior_dofs_left_among_the_normals_are_eliminated_densely():
     pair = s.pair("hertz", "low_top", "up_bottom", (0.0, 1.0))
     model = s.model([210000.0, 210000.0], [0.3, 0.3], [False, True], supports=[SpringSupport("low_bottom", None, 0.0)],
                     loads=[FaceLoad("up_top", -1500.0)], contacts=[pair])
-    system = assemble(model)
-    faces = [pair_face(system, p) for p in model.contacts]
-    G, _ = gap_operator(system, faces)
-    prep = Prepared(system, {}, factor=False)
-    Gi = G[prep.inner]
-    reference = Gi.T @ spsolve(prep.K.tocsc(), Gi.toarray())
+    prep, faces, Gi, reference = condensation_problem(model)
     fast = _condensation(prep, faces)
     n, m = prep.K.shape[0], fast.normal_slots.size
     assert fast.order is None and np.asarray(fast.lu.perm_c)[fast.normal_slots].min() < n - m

@@ -11,7 +11,7 @@ from clutchfe.comparison import Comparison, HandCapacity, compare, hand_of
 from clutchfe.geometry import build_section, mesh_section
 from clutchfe.solve import fe_model_of
 
-__all__ = ["Solved", "solve_case", "solved_case"]
+__all__ = ["CONDENSE_CONE", "Solved", "condensation_problem", "model_of", "solve_case", "solved_case"]
 
 
 @dataclass
@@ -67,3 +67,33 @@ def solve_tilted(case, tilt_deg: float, offset_mm: float = 0.0, divisions: int |
                                                          radial_offset=offset_mm))
     solved = SolveService().solve(case, fields=False, on_grid=True)
     return Tilted(tilt_result(solved), compare_solved(solved))
+
+
+# a small cone for the condensation tests (demo data, invented)
+CONDENSE_CONE = {"kind": "cone",
+                 "interface": {"inner_radius": 40.0, "outer_radius": 50.0, "semi_cone_angle": 20.0,
+                               "friction_coefficient": 0.2, "friction_surfaces": 1},
+                 "load": {"axial_force": 1000.0}}
+
+
+def model_of(case):
+    """The FE model the solve service builds for ``case`` (on its own mesh)."""
+    from clutchfe.plan import section_of
+    section = section_of(case)
+    return fe_model_of(case, section, mesh_section(section))
+
+
+def condensation_problem(model):
+    """What a condensation test needs of a model: the unfactorised prepared system, the paired faces,
+    the gap operator on the free dofs and the reference compliance Gᵀ K⁻¹ G by one sparse solve per
+    contact force (scipy's spsolve, independent of any ordering)."""
+    from scipy.sparse.linalg import spsolve
+    from clutchfe.fem.pairing import gap_operator, pair_face
+    from clutchfe.fem.solve import Prepared
+
+    system = fem.assemble(model)
+    faces = [pair_face(system, p) for p in model.contacts]
+    G, _ = gap_operator(system, faces)
+    prep = Prepared(system, {}, factor=False)
+    Gi = G[prep.inner]
+    return prep, faces, Gi, Gi.T @ spsolve(prep.K.tocsc(), Gi.toarray())
