@@ -18,7 +18,7 @@ from .case_checks import BASE, RELATIONS, CaseValues, run_checks
 from .errors import CaseError
 from .names import label_problem, safe_label
 from .schema import SCHEMA, Key, describe_range
-from .toml_input import MAX_KEYS, _key_count, read_toml, shown
+from .toml_input import MAX_KEYS, key_count, read_toml, shown
 
 
 def _table_class(table: str):
@@ -153,7 +153,7 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
     """
     if not isinstance(data, dict):
         raise CaseError([f"case: {shown(data)}: allowed: tables of keys (a parsed case file)"])
-    count = _key_count(data)
+    count = key_count(data)
     if count > MAX_KEYS:
         raise CaseError([f"case: holds {count} keys; allowed: at most {MAX_KEYS} (clutchfe keys lists them)"])
     problems: list[str] = []
@@ -175,7 +175,7 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
     warnings: list[str] = []
     if kind is not None:
         values = CaseValues(values, invalid=invalid, tables_given=given)
-        derived = _fill_defaults(values, kind, problems)
+        derived = _fill_defaults(values, kind)
         base_problems = len(problems)
         run_checks(BASE, values, kind, problems, warnings)
         if len(problems) > base_problems:
@@ -351,7 +351,7 @@ def _in_range(value, spec: Key) -> bool:
     return True
 
 
-def _fill_defaults(values: dict, kind: str, problems: list[str]) -> list[str]:
+def _fill_defaults(values: dict, kind: str) -> list[str]:
     """Fill in every default that can be computed; returns the keys derived from other keys."""
     values["kind"] = kind
     derived = []

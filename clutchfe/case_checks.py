@@ -100,6 +100,12 @@ def check_lining_carrier(v, kind, problems, warnings):
                             f"{thick:g} mm); allowed: 0.1 ≤ thickness < {thick:g} mm")
 
 
+def _radius_keys(part: str) -> tuple[str, str]:
+    """The inner and outer radius keys of a plate-clutch part (the disc's are its core's)."""
+    return (("disc.core_inner_radius", "disc.core_outer_radius") if part == "disc"
+            else (f"{part}.inner_radius", f"{part}.outer_radius"))
+
+
 def _plates(v) -> list[str]:
     return ["pressure_plate", "counter_plate"] + (["separator_plate"] if v["interface.friction_surfaces"] > 2
                                                   else [])
@@ -123,9 +129,7 @@ def check_plate_parts(v, kind, problems, warnings):
     if kind != "plate":
         return
     r1, r2 = v["interface.inner_radius"], v["interface.outer_radius"]
-    for part in _plates(v) + ["disc"]:
-        lo_key, hi_key = (("disc.core_inner_radius", "disc.core_outer_radius") if part == "disc"
-                          else (f"{part}.inner_radius", f"{part}.outer_radius"))
+    for lo_key, hi_key in map(_radius_keys, _plates(v) + ["disc"]):
         lo, hi = v[lo_key], v[hi_key]
         if lo > r1:
             problems.append(f"{lo_key} = {lo:g}: the friction surface must lie on the part; "
@@ -150,11 +154,8 @@ def check_lining_ends(v, kind, problems, warnings):
     if kind != "plate" or v["lining.end_shape"] != "chamfer" or v["lining.bonded_to"] not in ("disc", "plates"):
         return
     r1, r2, t = v["interface.inner_radius"], v["interface.outer_radius"], v["lining.thickness"]
-    if v["lining.bonded_to"] == "disc":
-        carriers = [("disc.core_inner_radius", "disc.core_outer_radius")]
-    else:
-        carriers = [(f"{p}.inner_radius", f"{p}.outer_radius") for p in _plates(v)]
-    for lo_key, hi_key in carriers:
+    carriers = ["disc"] if v["lining.bonded_to"] == "disc" else _plates(v)
+    for lo_key, hi_key in map(_radius_keys, carriers):
         lo, hi = v[lo_key], v[hi_key]
         if r1 - t < lo <= r1:           # lo > r1 is reported by the friction-surface check
             problems.append(f"{lo_key} = {lo:g}: with lining.end_shape = 'chamfer' the lining's bond runs one "

@@ -63,26 +63,25 @@ def _r(x, nd=2):
     return round(x, max(nd, 2 - math.floor(math.log10(abs(x)))))
 
 
+def _closed(low: float, high: float, why: str) -> dict:
+    """A plausible range ``low ≤ value ≤ high`` and its reason, as Key arguments."""
+    return dict(low=low, high=high, low_inclusive=True, high_inclusive=True, why=why)
+
+
 # Plausible ranges (the reason goes with each key).  Lengths in mm: the smallest clutch parts are
 # fractions of a millimetre (a wet lining, a thin separator), the largest clutches a few metres across.
-RADIUS_RANGE = dict(low=2.0, high=2500.0, low_inclusive=True, high_inclusive=True,
-                    why="from a 2 mm instrument clutch to a 5 m marine or mill clutch (common practice); "
-                        "radii are in mm, so a value below 2 is often one typed in metres")
-PART_RADIUS_RANGE = dict(low=0.01, high=3000.0, low_inclusive=True, high_inclusive=True,
-                         why="a part radius within 3 m of the axis (the largest clutches, common practice), "
-                             "at least 0.01 mm (below machining tolerance)")
-THICKNESS_RANGE = dict(low=0.2, high=2000.0, low_inclusive=True, high_inclusive=True,
-                       why="no clutch part is thinner than 0.2 mm (thin separator plates are ~1 mm, common "
-                           "practice); a value below is often one typed in metres")
-LENGTH_RANGE = dict(low=0.01, high=3000.0, low_inclusive=True, high_inclusive=True,
-                    why="a length within 3 m (the largest clutches, common practice), at least 0.01 mm "
-                        "(below machining tolerance)")
-BODY_MODULUS_RANGE = dict(low=10000.0, high=700000.0, low_inclusive=True, high_inclusive=True,
-                          why="metals and fibre composites the bodies are made of: from ~10 GPa (glass-fibre "
-                              "composite) over magnesium ~45, aluminium ~70, cast iron 90–170, steel ~210 to "
-                              "cemented carbide ~600 GPa (from memory); moduli are in MPa, so 210 means GPa")
-BODY_POISSON_RANGE = dict(low=0.05, high=0.45, low_inclusive=True, high_inclusive=True,
-                          why="metals and composites 0.1–0.4 (from memory)")
+RADIUS_RANGE = _closed(2.0, 2500.0, "from a 2 mm instrument clutch to a 5 m marine or mill clutch (common "
+                       "practice); radii are in mm, so a value below 2 is often one typed in metres")
+PART_RADIUS_RANGE = _closed(0.01, 3000.0, "a part radius within 3 m of the axis (the largest clutches, common "
+                            "practice), at least 0.01 mm (below machining tolerance)")
+THICKNESS_RANGE = _closed(0.2, 2000.0, "no clutch part is thinner than 0.2 mm (thin separator plates are ~1 mm, "
+                          "common practice); a value below is often one typed in metres")
+LENGTH_RANGE = _closed(0.01, 3000.0, "a length within 3 m (the largest clutches, common practice), at least "
+                       "0.01 mm (below machining tolerance)")
+BODY_MODULUS_RANGE = _closed(10000.0, 700000.0, "metals and fibre composites the bodies are made of: from ~10 GPa "
+                             "(glass-fibre composite) over magnesium ~45, aluminium ~70, cast iron 90–170, steel "
+                             "~210 to cemented carbide ~600 GPa (from memory); moduli are in MPa, so 210 means GPa")
+BODY_POISSON_RANGE = _closed(0.05, 0.45, "metals and composites 0.1–0.4 (from memory)")
 
 
 CONE = ("cone",)

@@ -54,7 +54,7 @@ def read_toml(path: str | Path, what: str = "case file") -> tuple[dict, bytes]:
         raise CaseError([f"{path}: malformed TOML: {exc}"]) from None
     except RecursionError:
         raise CaseError([f"{path}: values nested too deep; allowed: at most {MAX_DEPTH} levels"]) from None
-    count = _key_count(data)
+    count = key_count(data)
     if count > MAX_KEYS:
         raise CaseError([f"{path}: holds {count} keys; allowed: at most {MAX_KEYS} (a case has ~150 keys in "
                          f"all: clutchfe keys)"])
@@ -91,7 +91,8 @@ def _bracket_depth(text: str) -> int:
     return deepest
 
 
-def _key_count(data, limit: int = MAX_KEYS + 1) -> int:
+def key_count(data, limit: int = MAX_KEYS + 1) -> int:
+    """The keys of nested tables and arrays of tables, counted up to ``limit`` (no recursion)."""
     count, stack = 0, [data]
     while stack and count < limit:
         item = stack.pop()

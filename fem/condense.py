@@ -198,7 +198,7 @@ class Condenser:
         return cls([(R.T @ K @ R).tocsc() for K in parts], R, node_dofs[:, 0])
 
     def condense(self, coefficients=(1.0,)) -> NormalCondensation | None:
-        n, m, slots = self.n, self.m, self.slots
+        n, slots = self.n, self.slots
         data = self.datas[0] if tuple(coefficients) == (1.0,) and len(self.datas) == 1 else \
             sum(c * d for c, d in zip(coefficients, self.datas))
         if self.order is None:

@@ -25,7 +25,6 @@ BOUNDARY_SAMPLES = 400
 
 def estimate_triangles(section: Section) -> int:
     """Estimated triangles of ``mesh_section(section)`` (linear or quadratic: the same triangles)."""
-    faces = {f for itf in section.interfaces for f in (itf.face_a, itf.face_b)}
     lengths = {itf.face_a: itf.slant_length for itf in section.interfaces}
     lengths.update({itf.face_b: itf.slant_length for itf in section.interfaces})
     segments = np.array([[*itf.start, *itf.end] for itf in section.interfaces], float)
@@ -36,7 +35,7 @@ def estimate_triangles(section: Section) -> int:
             n, _ = face_node_count(lengths[region.edge_names[0]], section.face_size, section.edge_size)
             total += 2 * (n - 1) * region.lining_layers
             continue
-        total += _body_triangles(section, region, segments, ends, faces)
+        total += _body_triangles(section, region, segments, ends)
     return int(math.ceil(total))
 
 
@@ -55,7 +54,7 @@ def _inside(loop: np.ndarray, points: np.ndarray) -> np.ndarray:
     return inside
 
 
-def _body_triangles(section: Section, region, segments, ends, faces) -> float:
+def _body_triangles(section: Section, region, segments, ends) -> float:
     loop = np.array([section.points[p] for p in region.loop], float)
     area, _ = section.region_area_and_moment(region)
     perimeter = np.linalg.norm(np.roll(loop, -1, axis=0) - loop, axis=1).sum()

@@ -17,10 +17,14 @@ import math
 import tempfile
 from dataclasses import dataclass
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from .section import GeometryError, Section
+
+if TYPE_CHECKING:                  # the annotation only: meshio is imported where meshes are read
+    import meshio
 
 PAIR_TOLERANCE_MM = 1e-9
 

@@ -7,20 +7,12 @@ import pytest
 
 from clutchfe.case import case_from_dict
 from clutchfe.fem import ContactSolver, solve
-from clutchfe.geometry import mesh_section
-from clutchfe.solve import fe_model_of
-from clutchfe.plan import section_of
 
-CONE = {"kind": "cone",
-        "interface": {"inner_radius": 40.0, "outer_radius": 50.0, "semi_cone_angle": 20.0,
-                      "friction_coefficient": 0.2, "friction_surfaces": 1},
-        "load": {"axial_force": 1000.0}}
+from tests.helpers.solving import CONDENSE_CONE as CONE, model_of
 
 
 def _model(data):
-    case = case_from_dict(data)
-    section = section_of(case)
-    return fe_model_of(case, section, mesh_section(section))
+    return model_of(case_from_dict(data))
 
 
 def test_reused_solver_matches_fresh_solves():

@@ -69,7 +69,7 @@ def solve_tilted(case, tilt_deg: float, offset_mm: float = 0.0, divisions: int |
     return Tilted(tilt_result(solved), compare_solved(solved))
 
 
-# a small cone for the condensation tests (demo data, invented)
+# a small cone for the condensation and reuse tests (demo data, invented)
 CONDENSE_CONE = {"kind": "cone",
                  "interface": {"inner_radius": 40.0, "outer_radius": 50.0, "semi_cone_angle": 20.0,
                                "friction_coefficient": 0.2, "friction_surfaces": 1},
