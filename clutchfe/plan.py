@@ -25,8 +25,8 @@ from rich.table import Table
 from .case import Case
 from .comparison import Comparison, HandCapacity, compare_solved, hand_of
 from .errors import CaseError, PhysicsError
-from .budget import check_mesh_budget
-from .geometry import build_section, mesh_section, section_picture, write_mesh
+from .budget import check_mesh_budget, contact_nodes, finest_factor
+from .geometry import build_section, estimate_triangles, mesh_section, section_picture, write_mesh
 from .output import atomic_folder, print_table, write_all, write_json
 from .provenance import CAUTION, __version__, versions
 
@@ -169,6 +169,10 @@ def print_check(case: Case, section, console) -> None:
     table.add_row("bodies", ", ".join(f"{b.label} ({b.role})" for b in section.bodies))
     table.add_row("lining", f"{case.lining.thickness:g} mm, E = {case.lining.youngs_modulus:g} MPa, "
                   f"on the {case.lining.bonded_to}")
+    triangles, factor = estimate_triangles(section), finest_factor(case)
+    table.add_row("mesh (estimated)", f"about {triangles} triangles, {contact_nodes(section, case.mesh.element_order)} "
+                  f"contact nodes" + (f"; the mesh study's finest about {triangles * factor:.0f} triangles"
+                                      if factor > 1 else "") + " (within the limits of docs/limits.md)")
     table.add_row("input sha256", case.input_sha256[:16] + "…")
     console.print(table)
 
