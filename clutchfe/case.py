@@ -9,6 +9,7 @@ import copy
 import difflib
 import hashlib
 import math
+import os
 import re
 from dataclasses import dataclass, field, make_dataclass, replace
 from pathlib import Path
@@ -18,6 +19,7 @@ from .case_checks import BASE, RELATIONS, CaseValues, run_checks
 from .errors import CaseError
 from .names import label_problem, safe_label
 from .schema import SCHEMA, Key, describe_range
+from .section_case import DRAWN_KEYS, DRAWN_TABLES, TABLE as SECTION_TABLE, section_file_of
 from .toml_input import MAX_KEYS, key_count, read_toml, shown
 
 
@@ -66,6 +68,10 @@ class Case:
     source: str = ""
     warnings: tuple = ()
     tables_given: frozenset = frozenset()     # tables present in the file (e.g. [wear] asks for wear-in)
+    # the user's own drawing of the section (geometry.section_spec.SectionFileSpec), instead of the
+    # parametric tables; None: the parametric shapes.  Its SHA-256 is an input hash like the case file's.
+    section_file: Any = None
+    section_file_sha256: str = ""
 
     @property
     def disc_count(self) -> int:
@@ -80,6 +86,11 @@ class Case:
                 value = getattr(obj, key)
                 if value is not None:
                     out[f"{table}.{key}"] = value
+        if self.section_file is not None:
+            # as seen from the case file, so that the same case gives the same report in any checkout
+            folder = Path(self.source).resolve().parent if self.source else Path.cwd()
+            out["section_file.path"] = Path(os.path.relpath(self.section_file.path, folder)).as_posix()
+            out["section_file.sha256"] = self.section_file_sha256
         return out
 
 
@@ -157,7 +168,8 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
     if count > MAX_KEYS:
         raise CaseError([f"case: holds {count} keys; allowed: at most {MAX_KEYS} (clutchfe keys lists them)"])
     problems: list[str] = []
-    flat = _flatten(data, problems)
+    drawing = {k: v for k, v in data.items() if k == SECTION_TABLE}
+    flat = _flatten({k: v for k, v in data.items() if k != SECTION_TABLE}, problems)
     kind = flat.get("kind")
     if kind not in ("cone", "plate"):
         problems.append(f"kind = {shown(kind)}: allowed: 'cone' or 'plate'" if kind is not None
@@ -173,9 +185,19 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
         if bad_name:
             problems.append(bad_name)
     warnings: list[str] = []
+    spec, spec_sha = None, ""
     if kind is not None:
         values = CaseValues(values, invalid=invalid, tables_given=given)
         derived = _fill_defaults(values, kind)
+        if drawing:
+            spec, spec_sha, drawing_problems = section_file_of(
+                data, source, values.get("mesh.lining_layers", 4),
+                (values.get("lining.youngs_modulus"), values.get("lining.poissons_ratio")))
+            problems += drawing_problems
+            # the drawing replaces the parametric parts: their defaults would describe parts not drawn
+            for full in [k for k in values if k.partition(".")[0] in DRAWN_TABLES or k in DRAWN_KEYS]:
+                values.pop(full)
+            derived = [k for k in derived if k in values]
         base_problems = len(problems)
         run_checks(BASE, values, kind, problems, warnings)
         if len(problems) > base_problems:
@@ -189,7 +211,8 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
         raise CaseError(problems)
     tables = {t: cls(**{k: values.get(f"{t}.{k}") for k in SCHEMA[t]}) for t, cls in _TABLE_CLASSES.items()}
     return Case(kind=kind, name=name, description=values.get("description") or "", input_sha256=sha256,
-                source=source, warnings=tuple(warnings), tables_given=given, **tables)
+                source=source, warnings=tuple(warnings), tables_given=given, section_file=spec,
+                section_file_sha256=spec_sha, **tables)
 
 
 def _flatten(data: dict, problems: list[str]) -> dict[str, Any]:
@@ -199,7 +222,7 @@ def _flatten(data: dict, problems: list[str]) -> dict[str, Any]:
         if isinstance(value, dict):
             if key not in SCHEMA or not key:
                 problems.append(f"[{_key_text(key)}]: unknown table{_hint(key, tables)}; allowed tables: "
-                                + ", ".join(tables))
+                                + ", ".join([*tables, SECTION_TABLE]))
                 continue
             for sub, subval in value.items():
                 if sub not in SCHEMA[key]:

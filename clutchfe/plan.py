@@ -167,8 +167,15 @@ def print_check(case: Case, section, console) -> None:
     table.add_row("friction", f"mu = {itf.friction_coefficient:g} on {itf.friction_surfaces} surface(s)")
     table.add_row("axial force", f"{case.load.axial_force:g} N ({case.load.application})")
     table.add_row("bodies", ", ".join(f"{b.label} ({b.role})" for b in section.bodies))
-    table.add_row("lining", f"{case.lining.thickness:g} mm, E = {case.lining.youngs_modulus:g} MPa, "
-                  f"on the {case.lining.bonded_to}")
+    if case.section_file is not None:
+        linings = sorted({r.body for r in section.regions if r.lining_layers})
+        table.add_row("section file", f"{case.section_file.path} (sha256 {case.section_file_sha256[:16]}…), "
+                      f"{len(section.regions)} regions, faces: {', '.join(sorted(section.face_names()))}")
+        table.add_row("lining", f"drawn, E = {case.lining.youngs_modulus:g} MPa, on the "
+                      f"{', '.join(linings) or 'no body (none drawn)'}")
+    else:
+        table.add_row("lining", f"{case.lining.thickness:g} mm, E = {case.lining.youngs_modulus:g} MPa, "
+                      f"on the {case.lining.bonded_to}")
     triangles, factor = estimate_triangles(section), finest_factor(case)
     table.add_row("mesh (estimated)", f"about {triangles} triangles, {contact_nodes(section, case.mesh.element_order)} "
                   f"contact nodes" + (f"; the mesh study's finest about {triangles * factor:.0f} triangles"
