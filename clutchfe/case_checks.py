@@ -237,17 +237,17 @@ def check_mesh(v, kind, problems, warnings):
     if divisions % 2:
         problems.append(f"mesh.angular_divisions = {divisions}: must be even (harmonics 0 … N on 2N "
                         "angles); allowed: 8, 10, … 256")
-    t = v["lining.thickness"]
+    t = v.get("lining.thickness")       # None when a section file draws the lining
     alpha = math.radians(v["interface.semi_cone_angle"])
     slant = (v["interface.outer_radius"] - v["interface.inner_radius"]) / math.sin(alpha)
     face, edge, body = v["mesh.interface_element_size"], v["mesh.edge_element_size"], v["mesh.element_size"]
     if slant > 0 and face > slant / 4.0:
         problems.append(f"mesh.interface_element_size = {face:g}: cannot resolve the friction face "
                         f"({slant:.3g} mm long); allowed: 0 < value ≤ {slant / 4.0:.4g} mm")
-    if face > 2.0 * t:
+    if t is not None and face > 2.0 * t:
         problems.append(f"mesh.interface_element_size = {face:g}: cannot resolve the lining "
                         f"({t:g} mm thick); allowed: 0 < value ≤ {2.0 * t:.4g} mm")
-    if edge > t:
+    if t is not None and edge > t:
         problems.append(f"mesh.edge_element_size = {edge:g}: cannot resolve the lining at its ends "
                         f"({t:g} mm thick); allowed: 0 < value ≤ {t:g} mm")
     if edge > face:
@@ -256,6 +256,11 @@ def check_mesh(v, kind, problems, warnings):
     if body < face:
         problems.append(f"mesh.element_size = {body:g}: must not be smaller than "
                         f"mesh.interface_element_size = {face:g} mm")
+    if v["mesh.friction_face_nodes"] == "independent":
+        for key in ("misalignment.axis_tilt", "misalignment.radial_offset"):
+            if v[key]:
+                problems.append(f"{key} = {v[key]:g}: the tilted solve pairs the friction faces node to node; "
+                                "give mesh.friction_face_nodes = \"matching\" or set it to 0")
 
 
 class CaseValues(dict):

@@ -320,6 +320,11 @@ SCHEMA: dict[str, dict[str, Key]] = {
                           why="the element count grows with its square; the mesh budget refuses what would "
                               "not fit anyway"),
         "element_order": Key("", "1 = linear, 2 = quadratic triangles", int, default=2, choices=(1, 2)),
+        "friction_face_nodes": Key("", "how the two sides of each friction face are meshed: \"matching\" (node "
+                                   "for node, paired exactly) or \"independent\" (the mate's nodes 1.4 times "
+                                   "as far apart, paired by a dual mortar projection; as imported drawings may "
+                                   "need, docs/solver-notes.md)", str, default="matching",
+                                   choices=("matching", "independent")),
         "angular_divisions": Key("", "angles of the contact grid around the axis for tilt and offset "
                                  "(harmonics 0 … half of it)", int, default=48, low=8, high=256,
                                  low_inclusive=True, high_inclusive=True,

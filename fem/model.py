@@ -57,13 +57,16 @@ class FacePressure:
 
 @dataclass
 class ContactPair:
-    """One friction interface: two faces whose nodes coincide at zero load.
+    """One friction interface: two faces on one straight line at zero load.
 
     ``normal_a`` is the unit outward normal (n_r, n_z) of body A's face; body B's
-    outward normal is its negative.  ``vertex_pairs`` is (2, k): row 0 a mesh
-    vertex on face A, row 1 the coincident vertex on face B.
-    ``initial_gap`` is the normal gap (mm, >= 0 opens) at each vertex pair before
-    loading, e.g. from a cone-angle mismatch or plate coning; the FE stage
+    outward normal is its negative.  ``vertex_pairs`` is (2, k): row 0 every mesh
+    vertex of face A, row 1 the coincident vertex on face B, or −1 where face B has
+    none (faces meshed independently): the FE stage then pairs face A with face B
+    by projection (fem/projection.py) unless it finds a coincident vertex for every
+    one; face A's nodes carry the forces and results either way.
+    ``initial_gap`` is the normal gap (mm, >= 0 opens) at each vertex of face A
+    before loading, e.g. from a cone-angle mismatch or plate coning; the FE stage
     interpolates it linearly to any higher-order nodes on the face.
     """
 
@@ -104,6 +107,9 @@ class InterfaceResult:
     tributary_area: np.ndarray      # (k,) mm^2, full ring (2 pi r weighted)
     gap: np.ndarray                 # (k,) mm after loading (0 where in contact)
     in_contact: np.ndarray          # (k,) bool
+    # (2, q) r, z of face-A nodes beyond the ends of face B (faces paired by projection), left
+    # out of the contact and of the arrays above
+    left_out: np.ndarray = field(default_factory=lambda: np.zeros((2, 0)))
 
 
 @dataclass

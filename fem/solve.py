@@ -241,8 +241,11 @@ def _condensation(prep: Prepared, faces: list[PairedFace]):
         return None
     position = np.full(prep.system.basis.N, -1, dtype=np.int64)
     position[prep.inner] = np.arange(prep.inner.size)
-    node_dofs = np.vstack([position[f.dofs_a] for f in faces] + [position[f.dofs_b] for f in faces])
-    normals = np.vstack([np.tile(_unit_normal(f), (f.dofs_a.shape[0], 1)) for f in faces] * 2)
+    # every B node a gap reads is rotated with the face's normal too: on faces paired by projection
+    # a column of G has several B nodes, all on their normal components (fem/pairing.py)
+    node_dofs = np.vstack([position[f.dofs_a] for f in faces] + [position[f.b_dofs] for f in faces])
+    normals = np.vstack([np.tile(_unit_normal(f), (f.dofs_a.shape[0], 1)) for f in faces]
+                        + [np.tile(_unit_normal(f), (f.b_dofs.shape[0], 1)) for f in faces])
     # a copy of its own that condense can drop once it has rotated it (peak memory)
     return condense(prep.free_stiffness(), node_dofs, normals)
 
@@ -294,7 +297,7 @@ def _interfaces(faces, sol) -> list[InterfaceResult]:
             name=face.pair.name, r=face.xy[0].copy(), z=face.xy[1].copy(),
             pressure=np.maximum(pressure, 0.0), normal_force=lam.copy(),
             tributary_area=face.area.copy(), gap=np.where(closed, 0.0, gap),
-            in_contact=closed))
+            in_contact=closed, left_out=face.left_out.copy()))
     return out
 
 

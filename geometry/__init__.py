@@ -30,6 +30,8 @@ def build_section(case) -> Section:
         if region.lining_layers:
             region.lining_layers = max(1, round(region.lining_layers * refinement))
     section.element_order = case.mesh.element_order
+    for itf in section.interfaces:
+        itf.matching_nodes = case.mesh.friction_face_nodes == "matching"
     return section
 
 

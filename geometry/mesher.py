@@ -1,7 +1,9 @@
 """Mesh a :class:`Section` with the gmsh Python API and read it back through meshio.
 
 * Friction faces on both bodies get the same transfinite node distribution, so
-  their nodes coincide at zero load (the contact stage pairs them node to node).
+  their nodes coincide at zero load (the contact stage pairs them node to node);
+  an interface with ``matching_nodes`` False gives face B a node count of its own
+  (the contact stage then pairs the faces by projection, fem/projection.py).
 * Linings are structured (transfinite) with ``lining_layers`` elements through
   the thickness; nodes cluster towards the lining ends, where the pressure
   changes fastest, and the bodies grade from the face size to the body size.
@@ -15,7 +17,7 @@ import contextlib
 import io
 import math
 import tempfile
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 from typing import TYPE_CHECKING
 
@@ -37,8 +39,12 @@ class SectionMesh:
     region_names: list[str]
     region_body: list[str]
     faces: dict[str, np.ndarray]        # face name -> (k, 2) or (k, 3) boundary segments
-    interface_pairs: dict[str, np.ndarray]   # interface name -> (k, 2) [node on face_a, node on face_b]
+    # interface name -> (k, 2) [node on face_a, node on face_b], one row per node of face_a sorted
+    # along the face; −1 in column 1 where face B has no node at that place (matching_nodes False)
+    interface_pairs: dict[str, np.ndarray]
     order: int
+    # interface name -> (nodes of face_a, nodes of face_b), each sorted along the face
+    interface_sides: dict[str, tuple[np.ndarray, np.ndarray]] = field(default_factory=dict)
 
     @property
     def vertex_count(self) -> int:
@@ -60,8 +66,27 @@ def face_node_count(length: float, face_size: float, edge_size: float) -> tuple[
     return intervals + 1, coef
 
 
+def face_node_counts(section: Section) -> dict[str, tuple[int, float]]:
+    """Nodes and bump coefficient of every friction face, by face name: both faces of an interface
+    alike, except face B of one with ``matching_nodes`` False (spacing ``face_b_spacing`` times)."""
+    counts = {}
+    for itf in section.interfaces:
+        n, coef = face_node_count(itf.slant_length, section.face_size, section.edge_size)
+        counts[itf.face_a] = counts[itf.face_b] = (n, coef)
+        if not itf.matching_nodes:
+            ratio = itf.face_b_spacing
+            if not (math.isfinite(ratio) and ratio > 0.0):
+                raise GeometryError([f"interface {itf.name}: face_b_spacing must be a positive number, got {ratio}"])
+            nb, _ = face_node_count(itf.slant_length, ratio * section.face_size, ratio * section.edge_size)
+            if nb == n:         # the counts must differ, or the nodes would coincide again
+                nb = n + 1 if ratio < 1.0 or n <= 5 else n - 1
+            counts[itf.face_b] = (nb, coef)
+    return counts
+
+
 def mesh_section(section: Section, order: int | None = None) -> SectionMesh:
-    """Mesh a section with gmsh (triangles; matching nodes on both sides of every friction face).
+    """Mesh a section with gmsh (triangles; matching nodes on both sides of every friction face
+    whose ``matching_nodes`` is set, the default).
 
     Parameters
     ----------
@@ -73,7 +98,8 @@ def mesh_section(section: Section, order: int | None = None) -> SectionMesh:
     Returns
     -------
     SectionMesh
-        Points, triangles, region and face groups, and the node pairs of each friction face.
+        Points, triangles, region and face groups, the node pairs of each friction face and the
+        nodes of its two sides.
     """
     import gmsh   # imported late: gmsh starts a C++ runtime
     import meshio  # and meshio costs ~0.1 s CPU, which `clutchfe check` need not pay
@@ -117,18 +143,16 @@ def _build(gmsh, section: Section) -> None:
         loops.append(signed)
     surfaces = [geo.addPlaneSurface([geo.addCurveLoop(s)]) for s in loops]
 
-    faces = {f for itf in section.interfaces for f in (itf.face_a, itf.face_b)}
-    lengths = {itf.face_a: itf.slant_length for itf in section.interfaces}
-    lengths.update({itf.face_b: itf.slant_length for itf in section.interfaces})
+    counts = face_node_counts(section)
     face_lines = []
     for reg, signed, surf in zip(section.regions, loops, surfaces):
         for k, name in enumerate(reg.edge_names):
-            if name in faces:
-                n, coef = face_node_count(lengths[name], section.face_size, section.edge_size)
+            if name in counts:
+                n, coef = counts[name]
                 geo.mesh.setTransfiniteCurve(abs(signed[k]), n, "Bump", coef)
                 face_lines.append(abs(signed[k]))
         if reg.lining_layers:
-            n, coef = face_node_count(lengths[reg.edge_names[0]], section.face_size, section.edge_size)
+            n, coef = counts[reg.edge_names[0]]       # the bond gets the friction face's nodes
             geo.mesh.setTransfiniteCurve(abs(signed[2]), n, "Bump", coef)
             for k in (1, 3):
                 geo.mesh.setTransfiniteCurve(abs(signed[k]), reg.lining_layers + 1)
@@ -220,13 +244,14 @@ def _to_section_mesh(raw: meshio.Mesh, section: Section, order: int) -> SectionM
         swap = [0, 2, 1, 5, 4, 3] if order == 2 else [0, 2, 1]
         triangles[flip] = triangles[flip][:, swap]
     region_body = [next(reg.body for reg in section.regions if reg.name == n) for n in region_names]
-    pairs = {itf.name: _pair_nodes(points, faces, itf) for itf in section.interfaces}
+    sides = {itf.name: _sides(points, faces, itf) for itf in section.interfaces}
+    pairs = {itf.name: _pair_nodes(points, *sides[itf.name], itf) for itf in section.interfaces}
     return SectionMesh(points=points, triangles=triangles, triangle_region=triangle_region,
                        region_names=region_names, region_body=region_body, faces=faces,
-                       interface_pairs=pairs, order=order)
+                       interface_pairs=pairs, order=order, interface_sides=sides)
 
 
-def _pair_nodes(points, faces, itf) -> np.ndarray:
+def _sides(points, faces, itf) -> tuple[np.ndarray, np.ndarray]:
     direction = np.subtract(itf.end, itf.start)
     direction = direction / np.linalg.norm(direction)
     sides = []
@@ -234,7 +259,19 @@ def _pair_nodes(points, faces, itf) -> np.ndarray:
         nodes = np.unique(faces[name])
         s = (points[nodes] - itf.start) @ direction
         sides.append(nodes[np.argsort(s)])
-    a, b = sides
-    if len(a) != len(b) or np.abs(points[a] - points[b]).max() > PAIR_TOLERANCE_MM:
-        raise GeometryError([f"internal: the nodes of {itf.face_a} and {itf.face_b} do not coincide"])
-    return np.column_stack([a, b])
+    return sides[0], sides[1]
+
+
+def _pair_nodes(points, a, b, itf) -> np.ndarray:
+    if itf.matching_nodes:
+        if len(a) != len(b) or np.abs(points[a] - points[b]).max() > PAIR_TOLERANCE_MM:
+            raise GeometryError([f"internal: the nodes of {itf.face_a} and {itf.face_b} do not coincide"])
+        return np.column_stack([a, b])
+    # each node of face A with the node of face B at its place, if there is one (the face ends):
+    # the nearer of B's two nodes around it along the face
+    direction = np.subtract(itf.end, itf.start)
+    s_a, s_b = [(points[nodes] - itf.start) @ direction for nodes in (a, b)]
+    i = np.clip(np.searchsorted(s_b, s_a), 1, len(b) - 1)
+    near = np.where(np.abs(s_a - s_b[i - 1]) <= np.abs(s_b[i] - s_a), i - 1, i)
+    apart = np.abs(points[a] - points[b[near]]).max(axis=1)
+    return np.column_stack([a, np.where(apart <= PAIR_TOLERANCE_MM, b[near], -1)])

@@ -52,6 +52,11 @@ class FrictionInterface:
     end: tuple[float, float]      # (r, z) at the outer radius r2
     gap_start: float = 0.0        # initial normal gap (mm) at r1 and r2, linear in between
     gap_end: float = 0.0
+    # False: face B is meshed with its own node count (node spacing face_b_spacing × face A's), so
+    # the nodes of the two faces do not coincide and the FE stage pairs them by projection
+    # (fem/projection.py); True: the same nodes on both faces, paired node to node
+    matching_nodes: bool = True
+    face_b_spacing: float = 1.4   # > 1: face B coarser, face A (the side that carries the results) finer
 
     @property
     def slant_length(self) -> float:

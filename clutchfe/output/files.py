@@ -52,10 +52,13 @@ def contact_pressure_at_vertices(mesh, fe) -> np.ndarray:
     p = np.zeros(len(mesh.points))
     for itf in fe.interfaces:
         pairs = mesh.interface_pairs[itf.name]
-        for side in (0, 1):
-            xy = mesh.points[pairs[:, side]]
-            # interface nodes include P2 mid-nodes; keep the values that sit on vertices
-            for node, (r, z) in zip(pairs[:, side], xy):
+        # each side's own nodes: without matching nodes face B has nodes of its own (−1 in pairs)
+        sides = mesh.interface_sides.get(itf.name) or (pairs[:, 0], pairs[:, 1])
+        for nodes in sides:
+            nodes = np.asarray(nodes)
+            nodes = nodes[nodes >= 0]
+            # interface nodes include P2 mid-nodes; keep the values that sit on vertices (nearest result point)
+            for node, (r, z) in zip(nodes, mesh.points[nodes]):
                 k = np.argmin((itf.r - r) ** 2 + (itf.z - z) ** 2)
                 p[node] = itf.pressure[k]
     return p
