@@ -333,8 +333,9 @@ def summary_of(result: CaseResult, evidence: Evidence | None = None) -> dict:
     case, fe, mesh, comparison = result.case, result.solved.fe, result.solved.mesh, result.comparison
     itf = case.interface
     summary = {
-        "case_name": case.name, "kind": case.kind, "input_sha256": case.input_sha256, "version": __version__,
-        "friction_coefficient": itf.friction_coefficient, "friction_surfaces": itf.friction_surfaces,
+        "case_name": case.name, "kind": case.kind, "input_sha256": case.input_sha256,
+        "section_file": case.flat().get("section_file.path"), "section_file_sha256": case.section_file_sha256,
+        "version": __version__, "friction_coefficient": itf.friction_coefficient, "friction_surfaces": itf.friction_surfaces,
         "semi_cone_angle_deg": itf.semi_cone_angle, "inner_radius_mm": itf.inner_radius,
         "outer_radius_mm": itf.outer_radius, "axial_force_N": case.load.axial_force,
     }

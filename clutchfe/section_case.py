@@ -234,7 +234,7 @@ def section_file_of(data: dict, source: str, lining_layers: int, lining_material
     if TABLE not in data:
         return None, "", problems
     read = _Reader(problems)
-    table = read.table(f"[{TABLE}]", data[TABLE], tuple(TOP_KEYS))
+    table = read.table(TABLE, data[TABLE], tuple(TOP_KEYS))
     if not table:
         return None, "", problems or [f"[{TABLE}]: empty; it needs at least path, units, bodies, regions, friction, "
                                       f"load, axial_support and radial_support"]
@@ -323,4 +323,4 @@ def describe_keys() -> list[tuple[str, str]]:
     return out
 
 
-__all__ = ["DRAWN_KEYS", "DRAWN_TABLES", "TABLE", "describe_keys", "section_file_of"]
+__all__ = ["DRAWN_KEYS", "DRAWN_TABLES", "TABLE", "TOP_KEYS", "describe_keys", "section_file_of"]

@@ -43,6 +43,9 @@ SUMMARY_KEYS: tuple[SummaryKey, ...] = (
         ("case_name", "", "name of the case: its name key, else the case file's name"),
         ("kind", "", '"cone" or "plate"'),
         ("input_sha256", "", "SHA-256 of the case file as read (empty for a case built in code)"),
+        ("section_file", "", "the drawing the section was read from, as the case file names it ([section_file] "
+                             "path); null for a parametric section"),
+        ("section_file_sha256", "", "SHA-256 of that drawing as read (empty for a parametric section)"),
         ("friction_coefficient", "", "friction coefficient μ of the case"),
         ("friction_surfaces", "", "number of friction faces n carrying the torque"),
         ("semi_cone_angle_deg", "deg", "semi-cone angle α of the friction face (90 for a plate)"),

@@ -47,6 +47,7 @@ from hypothesis import strategies as st
 
 from clutchfe._cli import main
 from clutchfe.schema import SCHEMA
+from clutchfe.section_case import TABLE as SECTION_TABLE, TOP_KEYS as SECTION_KEYS
 
 from tests.helpers.data import CASES, CONE, PLATE, ROOT, SMALL_PLATE
 
@@ -133,11 +134,20 @@ def to_toml(doc: dict) -> str:
 
 # --------------------------------------------------------------------------- the demo cases mutated
 
+def _demo(path: Path) -> dict:
+    """A demo case file's tables, its drawing (if any) named by absolute path: the mutants live elsewhere."""
+    data = tomllib.loads(path.read_text(encoding="utf-8"))
+    if "section_file" in data:
+        data["section_file"]["path"] = str((path.parent / data["section_file"]["path"]).resolve())
+    return data
+
+
 BASES: dict[str, dict] = {"CONE": CONE, "PLATE": PLATE, "SMALL_PLATE": SMALL_PLATE,
-                          **{p.stem: tomllib.loads(p.read_text(encoding="utf-8")) for p in CASES}}
+                          **{p.stem: _demo(p) for p in CASES}}
 TABLES = sorted(t for t in SCHEMA if t)
 SCHEMA_PATHS = sorted((t, k) for t, keys in SCHEMA.items() for k in keys)      # ("", "kind"), ("cone", …)
-DOTTED_KEYS = sorted(f"{t}.{k}" for t, k in SCHEMA_PATHS if t)
+# the [section_file] table is read by clutchfe.section_case, not the flat schema: its keys name lines too
+DOTTED_KEYS = sorted([f"{t}.{k}" for t, k in SCHEMA_PATHS if t] + [f"{SECTION_TABLE}.{k}" for k in SECTION_KEYS])
 TOP_KEYS = sorted(k for t, k in SCHEMA_PATHS if not t)
 CHOICES = sorted({c for keys in SCHEMA.values() for spec in keys.values()
                   for c in getattr(spec, "choices", ()) if isinstance(c, str)})
@@ -629,7 +639,7 @@ def names_a_key(problem: str, keys: set[tuple[str, ...]], path: str) -> bool:
         return True
     if SCHEMA_KEY_TOKEN.search(problem):
         return True
-    if any(_starts_with(problem, s) for s in TOP_KEYS + [f"[{t}]" for t in TABLES]):
+    if any(_starts_with(problem, s) for s in TOP_KEYS + [f"[{t}]" for t in TABLES + [SECTION_TABLE]]):
         return True
     return any(_starts_with(problem, form) for parts in keys for form in _forms(parts))
 

@@ -79,7 +79,7 @@ def test_the_demo_cases_fit_with_their_mesh_study():
         if path.name.endswith(".study.toml"):
             continue
         data, _ = read_toml(path)
-        plan.section_of(case_from_dict(data))
+        plan.section_of(case_from_dict(data, source=str(path)))
 
 
 def test_a_narrow_face_keeps_the_bodies_coarse():
