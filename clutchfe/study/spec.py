@@ -214,7 +214,11 @@ def _base_case(data: dict, path: Path, problems: list[str]):
     except CaseError as exc:
         problems.extend(f"base_case {ref}: {p}" for p in exc.problems)
         return None, {}
-    return case, read_toml(case_path)[0]
+    data = read_toml(case_path)[0]
+    if case.section_file is not None:
+        # the samples are validated from these tables, not from the file: the drawing by its full path
+        data["section_file"]["path"] = str(case.section_file.path)
+    return case, data
 
 
 def case_key(full: str) -> Key | None:
