@@ -222,3 +222,18 @@ def test_the_drawn_demo_runs_end_to_end(kind, tmp_path, capsys):
     r1, r2 = (58.0, 72.0) if kind == "cone" else (85.0, 120.0)
     assert r1 < summary["effective_radius_mm"] < r2
     assert summary["contact_area_fraction"] > 0.99
+
+
+@pytest.mark.parametrize("change, text", [
+    (lambda d: d["section_file"]["friction"]["s1"].update(layer="NOPE"), "NOPE"),
+    (lambda d: d["section_file"].update(units="m"), "wrong units suspected"),                       # a 72 m cone: refused by size
+    (lambda d: d["section_file"].update(axis_at=40.0), "the outline crosses the axis"),                     # the cone then crosses the axis
+    (lambda d: d["section_file"]["regions"]["cup"].update(layer="CONE"), "CONE"),   # one outline claimed twice
+])
+def test_a_drawing_that_does_not_read_exits_2_naming_the_problem(change, text, tmp_path, capsys):
+    data = _drawn()
+    change(data)
+    code = main(["check", str(write_toml(tmp_path / "case.toml", data))])
+    err = capsys.readouterr().err
+    assert code == 2, err
+    assert text in err and "Traceback" not in err, err
