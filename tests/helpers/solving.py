@@ -6,6 +6,9 @@ re-solve directly); its numbers come from the same model the solve service build
 """
 from dataclasses import dataclass
 
+import numpy as np
+import pytest
+
 from clutchfe import fem
 from clutchfe.comparison import Comparison, HandCapacity, compare, hand_of
 from clutchfe.geometry import build_section, mesh_section
@@ -97,3 +100,19 @@ def condensation_problem(model):
     prep = Prepared(system, {}, factor=False)
     Gi = G[prep.inner]
     return prep, faces, Gi, Gi.T @ spsolve(prep.K.tocsc(), Gi.toarray())
+
+
+def assert_hertz_pressure(interface, P: float, Es: float, R: float, spacing: float) -> tuple[float, float]:
+    """The FE pressure of a sphere on a flat against Hertz: a³ = 3PR/(4E*), p0 = 3P/(2πa²) (Johnson,
+    Contact Mechanics 1985, §4.2), to 1 % in p0 and a; the contact ends within one node spacing of a.
+    p² is linear in r² inside the contact, so the fit gives p0 and a without depending on where the
+    last node happens to fall.  Returns (a, p0)."""
+    a = (3 * P * R / (4 * Es)) ** (1 / 3)
+    p0 = 3 * P / (2 * np.pi * a**2)
+    assert np.max(interface.pressure) == pytest.approx(p0, rel=1e-2)
+    inner = interface.r < 0.8 * a
+    slope, icpt = np.polyfit(interface.r[inner] ** 2, interface.pressure[inner] ** 2, 1)
+    assert np.sqrt(icpt) == pytest.approx(p0, rel=1e-2)
+    assert np.sqrt(-icpt / slope) == pytest.approx(a, rel=1e-2)
+    assert abs(interface.r[interface.in_contact].max() - a) <= spacing
+    return a, p0
