@@ -259,3 +259,31 @@ def test_a_step_drawing_of_the_pressure_plate_gives_the_dxf_answer(tmp_path):
     # (measured 2.5e-6 relative); a face read 0.1 mm off would move R_eff by ~1e-3
     assert b.torque_fe_Nm == pytest.approx(a.torque_fe_Nm, rel=2e-5)
     assert b.effective_radius_mm == pytest.approx(a.effective_radius_mm, rel=2e-5)
+
+
+def test_a_fillet_moved_in_the_drawing_is_what_the_next_run_solves(tmp_path):
+    # what a user does in a CAD program: the fillet at the outer foot of the cup's hub grows from 1.5 to
+    # 6 mm; the case is unchanged, so the run reads the new drawing (a new SHA-256) and solves it
+    from tests.test_section_file import CONE_CUP, DEMO
+    design = copy.deepcopy(CONE_CUP)
+    kind, corners = design["regions"]["CUP"]
+    k = next(i for i, (r, _, fillet) in enumerate(corners) if r == 30.0 and fillet == 1.5)   # the hub's foot
+    corners[k] = (*corners[k][:2], 6.0)
+    path = DEMO["write_dxf"](design, tmp_path / "cone_cup.dxf")
+    data = _drawn()
+    before = case_from_dict(data)
+    data["section_file"]["path"] = str(path)
+    after = case_from_dict(data)
+    assert after.section_file_sha256 != before.section_file_sha256
+    area = {}
+    for name, case in (("before", before), ("after", after)):
+        section = build_section(case)
+        cup = next(r for r in section.regions if r.name == "cup")
+        area[name] = section.region_area_and_moment(cup)[0]
+    # a right-angle convex corner: a fillet of radius ρ cuts off ρ²(1 − π/4) (plane geometry, common
+    # practice), so the cup loses (6² − 1.5²)(1 − π/4); each drawing's arcs are within the chord tolerance
+    # (0.05 mm) of their chords, so the areas are within 0.05 mm × the arcs' length (π/2 · ρ) each
+    lost = (6.0**2 - 1.5**2) * (1.0 - np.pi / 4.0)
+    assert area["before"] - area["after"] == pytest.approx(lost, abs=0.05 * np.pi / 2 * (6.0 + 1.5))
+    result = analyse(after, fields=False).comparison
+    assert 58.0 < result.effective_radius_mm < 72.0
