@@ -22,12 +22,18 @@ from __future__ import annotations
 
 import numpy as np
 import scipy.sparse as sp
+from scipy.sparse.linalg import splu
 from skfem import Basis, BilinearForm, ElementVector, asm
 
 from .assembly import System, element_for, face_basis
+from .condense import SUPERLU, Condenser
 from .forms import lame
+from .harmonic_condense import normal_compliances
 
 AXIS_TOLERANCE = 1e-9       # mm
+# below this many harmonics of one pattern, its one elimination costs more than a factorisation each
+# (its symbolic analysis; measured on the tilted demo, docs/solver-notes.md)
+SHARED_MIN = 3
 
 
 def harmonic_strain(u, r, n):
@@ -102,8 +108,30 @@ def harmonic_parts(basis: Basis, model) -> tuple[sp.csr_matrix, sp.csr_matrix, s
     L = 3 * nb
     rows = np.repeat(dofs, L, axis=1).ravel()
     cols = np.tile(dofs, (1, L)).ravel()
-    return tuple(sp.coo_matrix((np.concatenate(p).ravel(), (rows, cols)), shape=(basis.N, basis.N)).tocsr()
-                 for p in parts)
+    shape = (basis.N, basis.N)
+    Ka = sp.coo_matrix((np.concatenate(parts[0]).ravel(), (rows, cols)), shape=shape).tocsr()
+    # K_b and K_c as the real and imaginary part of one matrix: one conversion sums both, and the three
+    # share one pattern (every element entry, zeros kept), which fem/harmonic_condense.py reads directly
+    bc = sp.coo_matrix((np.concatenate(parts[1]).ravel() + 1j * np.concatenate(parts[2]).ravel(), (rows, cols)),
+                       shape=shape).tocsr()
+    Kb = sp.csr_matrix((bc.data.real.copy(), bc.indices.copy(), bc.indptr.copy()), shape=shape)
+    Kc = sp.csr_matrix((bc.data.imag.copy(), bc.indices, bc.indptr), shape=shape)
+    return Ka, Kb, Kc
+
+
+def _add_on_pattern(A: sp.csr_matrix, B: sp.csr_matrix) -> sp.csr_matrix:
+    """A + B on A's pattern (its explicit zeros kept) where B's entries lie in it; else the sparse sum."""
+    B = sp.csr_matrix(B)
+    B.sum_duplicates()
+    n = A.shape[1]
+    key = np.repeat(np.arange(A.shape[0], dtype=np.int64), np.diff(A.indptr)) * n + A.indices
+    kb = np.repeat(np.arange(B.shape[0], dtype=np.int64), np.diff(B.indptr)) * n + B.indices
+    at = np.minimum(np.searchsorted(key, kb), max(key.size - 1, 0))
+    if not (A.has_canonical_format and key.size and np.array_equal(key[at], kb)):
+        return (A + B).tocsr()
+    data = A.data.copy()
+    data[at] += B.data
+    return sp.csr_matrix((data, A.indices, A.indptr), shape=A.shape)
 
 
 class HarmonicStiffness:
@@ -119,7 +147,7 @@ class HarmonicStiffness:
         mesh, model = system.mesh, system.model
         self.basis = Basis(mesh, ElementVector(element_for(model.element_order), dim=3))
         Ka, self._b, self._c = harmonic_parts(self.basis, model)
-        self._a = (Ka + self._springs()).tocsr()
+        self._a = _add_on_pattern(Ka, self._springs())
         b2 = system.basis
         self.dof3 = np.full(b2.N, -1, dtype=np.int64)
         for comp in (0, 1):
@@ -145,6 +173,17 @@ class HarmonicStiffness:
                     fb = face_basis(system.mesh, self.basis.elem, system.facets[s.face])
                     total = total + asm(harmonic_face_spring, fb, k_area=k / system.face_area[s.face], d=comp)
         return total
+
+    def dof_nodes(self) -> np.ndarray:
+        """The node (vertex, then facet midpoint, as :meth:`axis_nodes`) of every harmonic dof."""
+        b = self.basis
+        node = np.empty(b.N, dtype=np.int64)
+        nv = b.nodal_dofs.shape[1]
+        for comp in range(3):
+            node[b.nodal_dofs[comp]] = np.arange(nv)
+            if b.facet_dofs.size:
+                node[b.facet_dofs[comp]] = nv + np.arange(b.facet_dofs.shape[1])
+        return node
 
     def matrix(self, n: int):
         return (self._a + n * self._b + (n * n) * self._c).tocsr()
@@ -195,9 +234,6 @@ class HarmonicStiffness:
 
 
 def _factor_solve(K, B):
-    from scipy.sparse.linalg import splu
-
-    from .condense import SUPERLU
     # same ordering choice as fem/solve.py (docs/solver-notes.md)
     lu = splu(sp.csc_matrix(K), permc_spec="MMD_AT_PLUS_A", **SUPERLU)
     return lu.solve(np.asarray(B.toarray() if sp.issparse(B) else B))
@@ -221,45 +257,73 @@ def harmonic_compliances(hs: HarmonicStiffness, harmonics, G3: sp.spmatrix, pins
     """:func:`harmonic_compliance` of every n in ``harmonics`` (all ≥ 1).
 
     The harmonics n ≥ 2 hold the same dofs, so their K(n) = K_a + n K_b + n² K_c share one
-    pattern: one :class:`fem.condense.Condenser` rotates it, and the ordering the first of them
-    finds is kept for the others (each further harmonic is one factorisation, docs/solver-notes.md).
+    pattern, and so does n = 1 where no node lies on the axis (no tie, the same held dofs): one
+    elimination of that pattern gives all of them at once (fem/harmonic_condense.py,
+    docs/solver-notes.md).  A harmonic alone, or a pattern where that elimination does not apply,
+    goes through :class:`fem.condense.Condenser` (one factorisation each, the ordering kept).
     """
-    from .condense import Condenser
-
     harmonics = [int(n) for n in harmonics]
     if min(harmonics, default=1) < 1:
         raise ValueError("harmonics n >= 1 expected (n = 0 is the axisymmetric model)")
+    first = [n for n in harmonics if n == 1]
+    rest = sorted({n for n in harmonics if n >= 2})
+    if first and rest and hs.axis_nodes().size == 0:
+        first, rest = [], [1] + rest
     out = {}
-    for group in ([n for n in harmonics if n == 1], sorted({n for n in harmonics if n >= 2})):
-        if not group:
-            continue
-        T = hs.axis_tie(group[0])
-        keep = np.ones(hs.basis.N, dtype=bool)
-        keep[hs.held(group[0])] = False
-        keep[pins] = False
-        inner = np.flatnonzero(keep)
-        if group[0] == 1:
-            parts, coefficients = [(T.T @ hs.matrix(1) @ T).tocsr()], (lambda n: (1.0,))
-            G = (T.T @ G3).tocsc()
-        else:
-            parts, coefficients = [hs._a, hs._b, hs._c], (lambda n: (1.0, float(n), float(n * n)))
-            G = sp.csc_matrix(G3)
-        parts = [K[inner][:, inner].tocsc() for K in parts]
-        Gi = G[inner]
-        position = np.full(hs.basis.N, -1, dtype=np.int64)
-        position[inner] = np.arange(inner.size)
-        condenser = Condenser.of(parts, position[node_dofs], normals) if node_dofs.size else None
-        rows = None
-        for n in group:
-            fast = condenser.condense(coefficients(n)) if condenser is not None else None
-            if fast is not None:
-                rows = fast.normal_rows(Gi) if rows is None else rows
-                out[n] = fast.compliance(Gi, rows)
-                continue
-            Ki = sum(c * K for c, K in zip(coefficients(n), parts)).tocsc()
-            C = Gi.T @ _factor_solve(Ki, Gi)
-            out[n] = 0.5 * (C + C.T)
+    for group in (first, rest):
+        fast = _shared(hs, group, G3, pins, node_dofs, normals) if len(group) >= SHARED_MIN else None
+        if fast is None:        # n = 1 has its own matrix in the Condenser (the tie), the others share one
+            fast = {}
+            for kind in ([n for n in group if n == 1], [n for n in group if n >= 2]):
+                fast.update(_condensed(hs, kind, G3, pins, node_dofs, normals) if kind else {})
+        out.update(fast)
     return [out[n] for n in harmonics]
+
+
+def _free_dofs(hs: HarmonicStiffness, n: int, pins: np.ndarray) -> np.ndarray:
+    keep = np.ones(hs.basis.N, dtype=bool)
+    keep[hs.held(n)] = False
+    keep[pins] = False
+    return np.flatnonzero(keep)
+
+
+def _shared(hs, group, G3, pins, node_dofs, normals) -> dict | None:
+    """The harmonics of one pattern without a tie (n ≥ 2, or n = 1 with no node on the axis) at once."""
+    inner = _free_dofs(hs, group[0], pins)
+    position = np.full(hs.basis.N, -1, dtype=np.int64)
+    position[inner] = np.arange(inner.size)
+    parts = [K[inner][:, inner] for K in (hs._a, hs._b, hs._c)]
+    C = normal_compliances(parts, [(1.0, float(n), float(n * n)) for n in group], hs.dof_nodes()[inner],
+                           sp.csc_matrix(G3)[inner], position[node_dofs], normals)
+    return None if C is None else dict(zip(group, C))
+
+
+def _condensed(hs, group, G3, pins, node_dofs, normals) -> dict:
+    """One :class:`fem.condense.Condenser` for harmonics of one pattern: one factorisation each."""
+    T = hs.axis_tie(group[0])
+    inner = _free_dofs(hs, group[0], pins)
+    if group[0] == 1:
+        parts, coefficients = [(T.T @ hs.matrix(1) @ T).tocsr()], (lambda n: (1.0,))
+        G = (T.T @ G3).tocsc()
+    else:
+        parts, coefficients = [hs._a, hs._b, hs._c], (lambda n: (1.0, float(n), float(n * n)))
+        G = sp.csc_matrix(G3)
+    parts = [K[inner][:, inner].tocsc() for K in parts]
+    Gi = G[inner]
+    position = np.full(hs.basis.N, -1, dtype=np.int64)
+    position[inner] = np.arange(inner.size)
+    condenser = Condenser.of(parts, position[node_dofs], normals) if node_dofs.size else None
+    rows, out = None, {}
+    for n in group:
+        fast = condenser.condense(coefficients(n)) if condenser is not None else None
+        if fast is not None:
+            rows = fast.normal_rows(Gi) if rows is None else rows
+            out[n] = fast.compliance(Gi, rows)
+            continue
+        Ki = sum(c * K for c, K in zip(coefficients(n), parts)).tocsc()
+        C = Gi.T @ _factor_solve(Ki, Gi)
+        out[n] = 0.5 * (C + C.T)
+    return out
 
 
 def harmonic_solve(hs: HarmonicStiffness, n: int, f: np.ndarray, pins: np.ndarray | None = None) -> np.ndarray:
