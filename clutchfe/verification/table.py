@@ -20,6 +20,8 @@ from .store import VerificationRows, json_row, store_table
 from .contact import hertz_sphere_on_flat, rigid_flat_punch
 from .limits import linear_gap, load_linearity, thin_lining_limit
 from .solids import lame_cylinder
+from .thermal import (energy_conservation, free_expansion, hollow_cylinder_log_law, plane_slab, semi_infinite_flux,
+                      thermal_coning)
 from .tilted import harmonic_vs_solid, winkler_small_tilt
 from .wear_limit import uniform_wear_limit
 
@@ -40,6 +42,13 @@ CASES: list[VerificationCase] = [
     VerificationCase("uniform-wear limit (Archard wear-in of a Winkler lining)", uniform_wear_limit),
     VerificationCase("lining under a small axis tilt (elastic-foundation limit)", winkler_small_tilt),
     VerificationCase("axis tilt: harmonics against a 3D solve", harmonic_vs_solid),
+    # heat (fem/heat.py) and the thermal-strain load (fem/thermal_strain.py): together 0.13-0.21 s CPU (measured)
+    VerificationCase("semi-infinite body under a constant surface flux", semi_infinite_flux),
+    VerificationCase("plane slab with a contact conductance (steady)", plane_slab),
+    VerificationCase("hollow cylinder, steady radial conduction (log law)", hollow_cylinder_log_law),
+    VerificationCase("energy of a slip transient with convection", energy_conservation),
+    VerificationCase("free thermal expansion under a uniform rise", free_expansion),
+    VerificationCase("thermal coning of a free plate (linear through-thickness rise)", thermal_coning),
 ]
 
 _memo: dict[tuple, tuple] = {}
