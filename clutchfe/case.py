@@ -18,7 +18,7 @@ from typing import Any
 from .case_checks import BASE, RELATIONS, CaseValues, run_checks
 from .errors import CaseError
 from .names import label_problem, safe_label
-from .schema import SCHEMA, Key, describe_range
+from .schema import ANALYSIS_TABLES, SCHEMA, THERMAL_KEYS, Key, describe_range
 from .section_case import DRAWN_KEYS, DRAWN_TABLES, TABLE as SECTION_TABLE, section_file_of
 from .toml_input import MAX_KEYS, key_count, read_toml, shown
 
@@ -40,6 +40,7 @@ CounterPlateTable, SeparatorPlateTable = _TABLE_CLASSES["counter_plate"], _TABLE
 SupportTable, MisalignmentTable = _TABLE_CLASSES["support"], _TABLE_CLASSES["misalignment"]
 RequirementTable, MeshTable = _TABLE_CLASSES["requirement"], _TABLE_CLASSES["mesh"]
 WearTable, VerificationTable = _TABLE_CLASSES["wear"], _TABLE_CLASSES["verification"]
+EngagementTable, CoolingTable = _TABLE_CLASSES["engagement"], _TABLE_CLASSES["cooling"]
 
 
 @dataclass(frozen=True)
@@ -64,6 +65,10 @@ class Case:
     mesh: MeshTable
     wear: WearTable
     verification: VerificationTable
+    # the hot engagement: None when the case has no [engagement] table (it asks for the analysis);
+    # [cooling] is always filled in (defaults), used only by the hot engagement
+    engagement: EngagementTable | None
+    cooling: CoolingTable
     input_sha256: str = ""
     source: str = ""
     warnings: tuple = ()
@@ -82,6 +87,8 @@ class Case:
         out = {"kind": self.kind, "name": self.name}
         for table in _TABLE_CLASSES:
             obj = getattr(self, table)
+            if obj is None:         # an analysis table the case does not give ([engagement])
+                continue
             for key in SCHEMA[table]:
                 value = getattr(obj, key)
                 if value is not None:
@@ -177,7 +184,7 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
         flat.pop("kind", None)          # reported once, here
         kind = None
     given = frozenset(k for k, v in data.items() if isinstance(v, dict))
-    values, invalid = _typed_values(flat, kind, problems, limit_case)
+    values, invalid = _typed_values(flat, kind, problems, limit_case, given)
     name = values.get("name", default_name)
     if "name" not in invalid:
         # the name becomes the results folder: a case file must not be able to point it elsewhere
@@ -187,12 +194,13 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
     warnings: list[str] = []
     spec, spec_sha = None, ""
     if kind is not None:
-        values = CaseValues(values, invalid=invalid, tables_given=given)
+        values = CaseValues(values, invalid=invalid, tables_given=given, typed=flat)
         derived = _fill_defaults(values, kind)
         if drawing:
             spec, spec_sha, drawing_problems = section_file_of(
                 data, source, values.get("mesh.lining_layers", 4),
-                (values.get("lining.youngs_modulus"), values.get("lining.poissons_ratio")))
+                (values.get("lining.youngs_modulus"), values.get("lining.poissons_ratio")),
+                lining_thermal={k: values.get(f"lining.{k}") for k in THERMAL_KEYS})
             problems += drawing_problems
             # the drawing replaces the parametric parts: their defaults would describe parts not drawn
             for full in [k for k in values if k.partition(".")[0] in DRAWN_TABLES or k in DRAWN_KEYS]:
@@ -210,6 +218,9 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
     if problems:
         raise CaseError(problems)
     tables = {t: cls(**{k: values.get(f"{t}.{k}") for k in SCHEMA[t]}) for t, cls in _TABLE_CLASSES.items()}
+    for table in ANALYSIS_TABLES:
+        if table not in given:
+            tables[table] = None
     return Case(kind=kind, name=name, description=values.get("description") or "", input_sha256=sha256,
                 source=source, warnings=tuple(warnings), tables_given=given, section_file=spec,
                 section_file_sha256=spec_sha, **tables)
@@ -285,8 +296,8 @@ def _spec(full: str) -> Key:
     return SCHEMA[table][key]
 
 
-def _typed_values(flat: dict, kind: str | None, problems: list[str],
-                  limit_case: bool = False) -> tuple[dict[str, Any], set[str]]:
+def _typed_values(flat: dict, kind: str | None, problems: list[str], limit_case: bool = False,
+                  given: frozenset = frozenset()) -> tuple[dict[str, Any], set[str]]:
     """The keys valid on their own (type, range, case kind), and the set of those given but invalid."""
     values: dict[str, Any] = {}
     invalid: set[str] = set()
@@ -308,7 +319,8 @@ def _typed_values(flat: dict, kind: str | None, problems: list[str],
     for table, keys in SCHEMA.items():
         for key, spec in keys.items():
             full = f"{table}.{key}" if table else key
-            if spec.required and kind is not None and kind in spec.kinds and full not in flat:
+            needed = spec.required or (spec.table_required and table in given)
+            if needed and kind is not None and kind in spec.kinds and full not in flat:
                 problems.append(f"{full}: missing; required ({describe_range(spec)})")
                 invalid.add(full)
     if kind == "cone" and "interface.semi_cone_angle" not in flat:
@@ -357,7 +369,10 @@ def _check_value(full: str, value: Any, spec: Key, problems: list[str]):
 
 def _unit_hint(value, spec: Key) -> str:
     """A hint when the value would be in range in the unit a user may have typed it in."""
-    for unit, other, factor in (("mm", "m", 1000.0), ("MPa", "GPa", 1000.0)):
+    if spec.unit == "1/K" and spec.high is not None and value > spec.high and _in_range(value * 1e-6, spec):
+        # 12 for steel: the coefficient typed in µm/(m·K)
+        return f" (1/K expected: {value:g} µm/(m·K) is {value * 1e-6:g} 1/K)"
+    for unit, other, factor in (("mm", "m", 1000.0), ("MPa", "GPa", 1000.0), ("kg/m³", "g/cm³", 1000.0)):
         # only for a value far below the range: 0.1 for a 0.2 mm minimum is a thin part, not metres
         if spec.unit == unit and 0 < value * 10 < spec.low and _in_range(value * factor, spec):
             return f" ({spec.unit} expected: {value:g} {other} is {value * factor:g} {unit})"
@@ -383,6 +398,8 @@ def _fill_defaults(values: dict, kind: str) -> list[str]:
             full = f"{table}.{key}" if table else key
             if full in values or full in values.invalid or kind not in spec.kinds:
                 continue
+            if table in ANALYSIS_TABLES and table not in values.tables_given:
+                continue            # an analysis the case does not ask for: no defaults to check
             try:
                 default = spec.default(values) if callable(spec.default) else spec.default
             except (KeyError, ZeroDivisionError, ValueError, OverflowError):

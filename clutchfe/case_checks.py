@@ -12,6 +12,9 @@ from __future__ import annotations
 
 import math
 
+from .engagement_checks import ENGAGEMENT_CHECKS
+from .schema import SCHEMA, describe_range
+
 MEAN_PRESSURE_MPA = (1e-3, 20.0)      # see check_mean_pressure
 MIN_PLATE_RADIUS_RATIO = 0.1
 MIN_FACE_WIDTH = 0.02                 # slant face width / r2
@@ -265,17 +268,20 @@ def check_mesh(v, kind, problems, warnings):
 
 class CaseValues(dict):
     """``table.key -> value`` of the keys that are valid on their own, with what was given: the keys
-    given but invalid (reported already) and the tables present in the file."""
+    given but invalid (reported already), the tables present in the file and every key it typed."""
 
-    def __init__(self, *args, invalid=frozenset(), tables_given=frozenset()):
+    def __init__(self, *args, invalid=frozenset(), tables_given=frozenset(), typed=frozenset()):
         super().__init__(*args)
         self.invalid, self.tables_given = frozenset(invalid), frozenset(tables_given)
+        # every key the file typed (valid or not): what the user chose, not a default
+        self.typed = frozenset(typed)
 
 
 # the keys every derived default is computed from, checked first
 BASE = (check_radii, check_angle_and_faces, check_face_width)
 RELATIONS = (check_mean_pressure, check_lining_carrier, check_cone_parts, check_plate_parts, check_coning,
-             check_lining_ends, check_load, check_support, check_tilt_pivot, check_wear, check_mesh)
+             check_lining_ends, check_load, check_support, check_tilt_pivot, check_wear, check_mesh,
+             *ENGAGEMENT_CHECKS)
 
 
 def run_checks(checks, values: dict, kind: str, problems: list[str], warnings: list[str]) -> None:

@@ -16,6 +16,11 @@ from .readme import write_between_markers
 STEEL_E, STEEL_NU = 210000.0, 0.30      # MPa; common practice for carbon steel
 CAST_IRON_E, CAST_IRON_NU = 110000.0, 0.26   # grey cast iron, from memory (90–140 GPa by grade)
 LINING_E, LINING_NU = 400.0, 0.25       # moulded organic facing, from memory (a few hundred MPa)
+# thermal conductivity W/(m·K), density kg/m³, specific heat J/(kg·K), expansion coefficient 1/K
+THERMAL_KEYS = ("thermal_conductivity", "density", "specific_heat", "expansion_coefficient")
+STEEL_THERMAL = (50.0, 7850.0, 460.0, 12e-6)        # carbon steel, common practice
+CAST_IRON_THERMAL = (50.0, 7200.0, 500.0, 11e-6)    # grey cast iron, from memory (k 45–55 by grade)
+LINING_THERMAL = (0.8, 2000.0, 1200.0, 20e-6)      # moulded organic facing, from memory (k 0.5–1, α 15–30e-6)
 
 
 @dataclass(frozen=True)
@@ -30,6 +35,9 @@ class Key:
     low_inclusive: bool = False
     high_inclusive: bool = False
     choices: tuple = ()
+    # required whenever its table is given (a table that asks for an analysis, e.g. [engagement]);
+    # a case without the table does not need it
+    table_required: bool = False
     kinds: tuple = ("cone", "plate")    # case kinds the key belongs to
     why: str = ""                       # why the range is what it is (shown by clutchfe keys)
     # the range the equations accept (open bounds), used instead of the plausible one for limit
@@ -82,17 +90,60 @@ BODY_MODULUS_RANGE = _closed(10000.0, 700000.0, "metals and fibre composites the
                              "(glass-fibre composite) over magnesium ~45, aluminium ~70, cast iron 90–170, steel "
                              "~210 to cemented carbide ~600 GPa (from memory); moduli are in MPa, so 210 means GPa")
 BODY_POISSON_RANGE = _closed(0.05, 0.45, "metals and composites 0.1–0.4 (from memory)")
+THERMAL_UNITS = dict(zip(THERMAL_KEYS, ("W/(m·K)", "kg/m³", "J/(kg·K)", "1/K")))
+THERMAL_MEANINGS = dict(zip(THERMAL_KEYS, ("thermal conductivity", "density", "specific heat capacity",
+                                           "linear thermal expansion coefficient (12e-6 for steel)")))
+BODY_THERMAL_RANGES = {
+    "thermal_conductivity": _closed(0.1, 450.0, "from glass-fibre composites (~0.3 W/(m·K)) over stainless steel "
+                                    "~15, carbon steel and cast iron ~50, aluminium 120–240 to copper ~400 (from "
+                                    "memory)"),
+    "density": _closed(1000.0, 16000.0, "from fibre composites (~1500 kg/m³) over magnesium 1740, aluminium 2700, "
+                       "steel 7850 to cemented carbide ~15 000 (from memory); a value near 7.85 is one typed in "
+                       "g/cm³"),
+    "specific_heat": _closed(100.0, 2000.0, "from cemented carbide (~200 J/(kg·K)) over steel ~460 and aluminium "
+                             "~900 to magnesium and composites ~1000–1300 (from memory)"),
+    "expansion_coefficient": _closed(0.5e-6, 40e-6, "from Invar and carbon-fibre composites (~1e-6 /K) over cast "
+                                     "iron ~11e-6, steel ~12e-6, aluminium ~23e-6 to magnesium ~26e-6 (from "
+                                     "memory); 12 typed for steel is 12e-6 /K in µm/(m·K)"),
+}
+LINING_THERMAL_RANGES = {
+    "thermal_conductivity": _closed(0.05, 150.0, "from wet paper (~0.1 W/(m·K)) over moulded organic facings "
+                                    "0.5–1 to sintered bronze (~30–60) and carbon–carbon (up to ~100), from memory"),
+    "density": _closed(300.0, 12000.0, "from porous wet paper (~500 kg/m³) over organic facings ~2000 to sintered "
+                       "bronze and iron (5000–9000), from memory"),
+    "specific_heat": _closed(200.0, 2500.0, "from sintered metal (~400–500 J/(kg·K)) over organic facings "
+                             "1000–1300 to wet paper (~1500), from memory"),
+    "expansion_coefficient": _closed(0.5e-6, 80e-6, "from carbon–carbon (~1e-6 /K) over sintered metal "
+                                     "(12–18e-6) to organic facings (15–30e-6, more through their thickness), "
+                                     "from memory"),
+}
 
+FILM_RANGE = _closed(0.0, 20000.0, "0 = adiabatic (a bound); still air 2–25, forced and rotating air 25–250, oil "
+                     "spray and jets 500–20 000 W/(m²·K): the textbook ranges of convection coefficients, from "
+                     "memory")
+# tables whose presence asks for an analysis: their keys are defaulted (and their table_required keys
+# required) only when the case gives the table; without it the case's attribute is None
+ANALYSIS_TABLES = ("engagement",)
 
 CONE = ("cone",)
 PLATE = ("plate",)
 
 
-def _material(what: str, modulus: float, poisson: float, kinds: tuple) -> dict:
-    """Young's modulus and Poisson's ratio of one body: the same two keys in every body table."""
+def _thermal(what: str, defaults: tuple, kinds: tuple, ranges: dict) -> dict:
+    """The four thermal keys of one material (only the hot engagement, [engagement], uses them)."""
+    return {key: Key(THERMAL_UNITS[key], f"{what}: {THERMAL_MEANINGS[key]} (used by the hot engagement; the "
+                     "default is the default material's: with your own youngs_modulus or poissons_ratio and "
+                     "an [engagement] table, give all four)", default=value, kinds=kinds, **ranges[key])
+            for key, value in zip(THERMAL_KEYS, defaults)}
+
+
+def _material(what: str, modulus: float, poisson: float, kinds: tuple, thermal: tuple) -> dict:
+    """Young's modulus, Poisson's ratio and the thermal properties of one body: the same keys in every
+    body table."""
     return {"youngs_modulus": Key("MPa", what, default=modulus, kinds=kinds, limit_range=(0.0, None),
                                   **BODY_MODULUS_RANGE),
-            "poissons_ratio": Key("", what, default=poisson, kinds=kinds, **BODY_POISSON_RANGE)}
+            "poissons_ratio": Key("", what, default=poisson, kinds=kinds, **BODY_POISSON_RANGE),
+            **_thermal(what, thermal, kinds, BODY_THERMAL_RANGES)}
 
 SCHEMA: dict[str, dict[str, Key]] = {
     "": {
@@ -146,6 +197,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
                               low_inclusive=True, high_inclusive=True,
                               why="porous and fibrous linings 0–0.35 (from memory); towards 0.5 a material is "
                                   "rubber-like, not a lining"),
+        **_thermal("lining", LINING_THERMAL, ("cone", "plate"), LINING_THERMAL_RANGES),
         "bonded_to": Key("", "the body carrying the lining: cone clutch \"cone\" (inner cone) or \"cup\"; "
                          "plate clutch \"disc\" (both disc faces) or \"plates\" (the faces of the plates)", str,
                          default=lambda c: "cone" if c["kind"] == "cone" else "disc",
@@ -165,7 +217,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
                                   why="linings are rated 0.1–3.5 MPa, sintered up to ~10 (from memory)"),
     },
     "cone": {
-        **_material("inner (male) cone material", STEEL_E, STEEL_NU, CONE),
+        **_material("inner (male) cone material", STEEL_E, STEEL_NU, CONE, STEEL_THERMAL),
         "rim_thickness": Key("mm", "conical rim under the lining, measured normal to the face",
                              default=lambda c: _r(0.1 * _r2(c)), **THICKNESS_RANGE, kinds=CONE),
         "web_thickness": Key("mm", "axial thickness of the web joining rim and hub (at the wide end)",
@@ -178,7 +230,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
                           default=lambda c: _r(0.6 * _cone_height(c) + 0.12 * _r2(c)), **LENGTH_RANGE, kinds=CONE),
     },
     "cup": {
-        **_material("outer cup material", CAST_IRON_E, CAST_IRON_NU, CONE),
+        **_material("outer cup material", CAST_IRON_E, CAST_IRON_NU, CONE, CAST_IRON_THERMAL),
         "wall_thickness": Key("mm", "conical wall of the cup, measured normal to the face",
                               default=lambda c: _r(0.12 * _r2(c)), **THICKNESS_RANGE, kinds=CONE),
         "face_overrun": Key("mm", "axial length the cup face runs on past the narrow end of the lining "
@@ -194,7 +246,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
                           default=lambda c: _r(0.4 * _r1(c)), **LENGTH_RANGE, kinds=CONE),
     },
     "pressure_plate": {
-        **_material("pressure plate material", CAST_IRON_E, CAST_IRON_NU, PLATE),
+        **_material("pressure plate material", CAST_IRON_E, CAST_IRON_NU, PLATE, CAST_IRON_THERMAL),
         "thickness": Key("mm", "axial thickness", default=lambda c: _r(0.12 * _r2(c)), **THICKNESS_RANGE, kinds=PLATE),
         "inner_radius": Key("mm", "inner radius", default=lambda c: _r(_r1(c) - 0.05 * _w(c)), **PART_RADIUS_RANGE,
                             kinds=PLATE),
@@ -202,7 +254,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
                             kinds=PLATE),
     },
     "disc": {
-        **_material("friction disc core material", STEEL_E, STEEL_NU, PLATE),
+        **_material("friction disc core material", STEEL_E, STEEL_NU, PLATE, STEEL_THERMAL),
         "core_thickness": Key("mm", "axial thickness of the steel core", default=lambda c: _r(0.025 * _r2(c)),
                               **THICKNESS_RANGE, kinds=PLATE),
         "core_inner_radius": Key("mm", "inner radius of the core (towards the splined hub)",
@@ -212,7 +264,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
     },
     "counter_plate": {
         **_material("counter plate (flywheel side, or the end plate of a pack)", CAST_IRON_E, CAST_IRON_NU,
-                    PLATE),
+                    PLATE, CAST_IRON_THERMAL),
         "thickness": Key("mm", "axial thickness", default=lambda c: _r(0.15 * _r2(c)), **THICKNESS_RANGE, kinds=PLATE),
         "inner_radius": Key("mm", "inner radius (bore)", default=lambda c: _r(0.3 * _r1(c)), **PART_RADIUS_RANGE,
                             kinds=PLATE),
@@ -220,7 +272,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
                             kinds=PLATE),
     },
     "separator_plate": {
-        **_material("separator plates between the discs of a pack", STEEL_E, STEEL_NU, PLATE),
+        **_material("separator plates between the discs of a pack", STEEL_E, STEEL_NU, PLATE, STEEL_THERMAL),
         "thickness": Key("mm", "axial thickness", default=lambda c: _r(0.025 * _r2(c)), **THICKNESS_RANGE, kinds=PLATE),
         "inner_radius": Key("mm", "inner radius", default=lambda c: _r(_r1(c) - 0.05 * _w(c)), **PART_RADIUS_RANGE,
                             kinds=PLATE),
@@ -372,6 +424,98 @@ SCHEMA: dict[str, dict[str, Key]] = {
                          high_inclusive=True, why="a wear-in from new takes 50–300 steps at the default step cap; "
                          "10 000 bounds the run time"),
     },
+    "cooling": {
+        # used only by the hot engagement; also the stress-free temperature of the section
+        "ambient_temperature": Key("°C", "temperature of the air or oil around the clutch, and the stress-free "
+                                   "temperature of the section (used by the hot engagement)", default=20.0,
+                                   **_closed(-60.0, 200.0, "from an arctic cold start (−40 °C) to hot "
+                                             "transmission oil (~150 °C), common practice")),
+        "film_coefficient": Key("W/(m²·K)", "heat transfer coefficient of the free faces to the ambient (default: "
+                                "a dry clutch in a ventilated housing, about 30, from memory); 0 = adiabatic",
+                                default=30.0, **FILM_RANGE),
+        "film_coefficient_rims": Key("W/(m²·K)", "the same on the free faces whose outward normal is mostly +r "
+                                     "(outer rims; default: film_coefficient)",
+                                     default=lambda c: c["cooling.film_coefficient"], **FILM_RANGE),
+        "film_coefficient_bores": Key("W/(m²·K)", "the same on the free faces whose outward normal is mostly −r "
+                                      "(bores; default: film_coefficient)",
+                                      default=lambda c: c["cooling.film_coefficient"], **FILM_RANGE),
+        "film_coefficient_sides": Key("W/(m²·K)", "the same on the free faces whose outward normal is mostly ±z "
+                                      "(sides; default: film_coefficient)",
+                                      default=lambda c: c["cooling.film_coefficient"], **FILM_RANGE),
+    },
+    "engagement": {
+        # the table asks for the hot engagement: slip heat q = μ p v at the friction faces, transient heat
+        # conduction in the section, the thermal distortion moving the pressure, the hot torque
+        "slip_speed": Key("rpm", "relative speed of the friction faces at the start of slip (the table asks for "
+                          "the hot engagement: slip heat, heat conduction, thermal distortion, hot torque)",
+                          table_required=True, low=0.0, high=30000.0, high_inclusive=True,
+                          why="up to the speeds of high-speed machinery, 30 000 rpm (common practice); the rim "
+                              "speed and the frictional power per face area are checked with the radii"),
+        "slip_time": Key("s", "slip duration of each engagement with speed_law \"constant\" or \"linear\"; with "
+                         "\"inertia\" the longest slip allowed", table_required=True, low=0.0, high=600.0,
+                         high_inclusive=True,
+                         why="engagements slip for fractions of a second to ~1 min (slipping starts); 10 min of "
+                             "slip burns any lining"),
+        "speed_law": Key("", "how the slip speed falls during an engagement: \"constant\" (a drag slip at "
+                         "slip_speed), \"linear\" (to zero at slip_time) or \"inertia\" (the friction torque "
+                         "minus drag_torque brings driven_inertia up to speed: lock-up when the slip ends)", str,
+                         default="linear", choices=("constant", "linear", "inertia")),
+        "engagements": Key("", "engagements in a row (each slip_time long, dwell_time apart)", int, default=1,
+                           low=1, high=1000, low_inclusive=True, high_inclusive=True,
+                           why="a duty of repeated engagements (hill starts, a shift sequence) is tens; past "
+                               "1000 the run time grows, not the insight (common practice)"),
+        "dwell_time": Key("s", "time between engagements, open and cooling only", default=0.0, low=0.0,
+                          high=86400.0, low_inclusive=True, high_inclusive=True,
+                          why="seconds to minutes in service; in a day any part is back at ambient (common "
+                              "practice)"),
+        "cool_down_time": Key("s", "cooling time after the last engagement", default=0.0, low=0.0, high=86400.0,
+                              low_inclusive=True, high_inclusive=True,
+                              why="in a day any part is back at ambient (common practice)"),
+        "driven_inertia": Key("kg·m²", "moment of inertia the clutch brings up to speed (required with "
+                              "speed_law = \"inertia\", not allowed otherwise)", low=1e-6, high=1e7,
+                              low_inclusive=True, high_inclusive=True,
+                              why="from a small instrument drive (~1e-5 kg·m²) to a mill or a ship's shaft line "
+                                  "(~1e5–1e6 kg·m²), from memory"),
+        "drag_torque": Key("N·m", "torque that resists the driven side while slipping (only with speed_law = "
+                           "\"inertia\")", default=0.0, low=0.0, high=1e7, low_inclusive=True,
+                           high_inclusive=True,
+                           why="up to the largest ship and mill clutches, ~10 MN·m (common practice); it must "
+                               "stay below the clutch's torque (checked)"),
+        "steps_per_engagement": Key("", "time steps of each engagement's slip", int, default=100, low=10,
+                                    high=10000, low_inclusive=True, high_inclusive=True,
+                                    why="below 10 steps the slip heat's history is not resolved (the run's "
+                                        "energy balance says what the steps buy); the total is bounded (checked)"),
+        "dwell_steps": Key("", "time steps of each dwell and of the cool-down", int, default=20, low=1,
+                           high=10000, low_inclusive=True, high_inclusive=True,
+                           why="cooling is smooth: a few steps follow it; the total is bounded (checked)"),
+        "heat_partition": Key("", "optional hand-method comparison: the fraction of the friction heat put into "
+                              "the lining's metal mate (the body the lining rubs on), the rest into the lining "
+                              "side, with no heat crossing the interface; omitted: the heat is shared by "
+                              "conduction across the interface (the physics)", **_closed(
+                                  0.0, 1.0, "a fraction of the heat (0: all into the lining side, 1: all into "
+                                            "the mate)")),
+        "contact_conductance": Key("W/(m²·K)", "thermal conductance of a closed friction interface (optional; "
+                                   "omitted: one temperature across a closed interface)",
+                                   **_closed(100.0, 1e8, "pressed metal and lining faces conduct ~1e3–1e5 "
+                                             "W/(m²·K) (from memory); past 1e8 the interface is one "
+                                             "temperature (leave the key out)")),
+        "coupling_tolerance": Key("", "the staggered pressure–temperature iteration of a time step stops when "
+                                  "max|Δp| / max p is at or below this", default=1e-6,
+                                  **_closed(1e-12, 1e-2, "below 1e-12 round-off; above 1 % the hot pressure is "
+                                            "not converged")),
+        "max_coupling_iterations": Key("", "most pressure–temperature iterations of a time step", int, default=30,
+                                       **_closed(1, 1000, "a step converges in a few iterations; 1000 bounds the "
+                                                 "run time")),
+        "snapshots": Key("", "frames of the VTU time series of temperature and displacement", int, default=20,
+                         **_closed(1, 10000, "at least one frame; more than the time steps are not written")),
+        "pressure_curves": Key("", "instants of the last engagement drawn in the hot p(r) picture", int, default=4,
+                               **_closed(1, 20, "past 20 curves the picture cannot be read")),
+        "initial_temperature": Key("°C", "temperature of the whole section at the start (default: "
+                                   "cooling.ambient_temperature)", default=lambda c: c["cooling.ambient_temperature"],
+                                   **_closed(-60.0, 400.0, "from an arctic cold start (−40 °C) to a clutch still "
+                                             "hot from earlier duty (organic facings fade past ~250–300 °C, from "
+                                             "memory); it is checked against the ambient")),
+    },
     "verification": {
         "mesh_study": Key("", "solve on three meshes (refinement ratio below) and report observed order, "
                           "Richardson extrapolation and the grid convergence index", bool, default=True),
@@ -418,6 +562,8 @@ def reference_markdown() -> str:
             full = f"{table}.{name}" if table else name
             if key.required:
                 default = "required"
+            elif key.table_required:
+                default = f"required with [{table}]"
             elif isinstance(key.default, bool):
                 default = str(key.default).lower()
             elif callable(key.default):

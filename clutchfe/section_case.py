@@ -48,7 +48,7 @@ from typing import Any
 
 from .geometry.section_spec import (ROLES, UNITS, Axis, BodySpec, FaceSpec, FrictionSpec, RegionSpec, Select,
                                     SectionFileSpec, spec_problems)
-from .schema import BODY_MODULUS_RANGE, BODY_POISSON_RANGE
+from .schema import BODY_MODULUS_RANGE, BODY_POISSON_RANGE, BODY_THERMAL_RANGES, THERMAL_KEYS, THERMAL_UNITS
 from .toml_input import shown
 
 TABLE = "section_file"
@@ -76,7 +76,8 @@ TOP_KEYS = {
     "faces": "table: further named faces (free faces), one sub-table each (a curve choice)",
 }
 SELECT_KEYS = ("layer", "named", "curve_index", "box", "through")
-REGION_KEYS = ("body", "layer", "label", "index", "inside", "lining", "youngs_modulus", "poissons_ratio")
+REGION_KEYS = ("body", "layer", "label", "index", "inside", "lining", "youngs_modulus", "poissons_ratio",
+               *THERMAL_KEYS)
 FRICTION_KEYS = ("body_a", "body_b", "lining_body", *SELECT_KEYS, *(f"mate_{k}" for k in SELECT_KEYS))
 FACE_KEYS = (*SELECT_KEYS, "body", "face_name")
 DEFAULT_FACE_NAMES = {"load": "load_face", "axial_support": "axial_support_face",
@@ -158,7 +159,8 @@ def _select(read: _Reader, where: str, entry: dict, prefix: str = "", body: str 
     return Select(box=point, body=body) if key == "box" else Select(through=point, body=body)
 
 
-def _region(read: _Reader, name: str, entry: dict, lining_layers: int, lining_material) -> RegionSpec | None:
+def _region(read: _Reader, name: str, entry: dict, lining_layers: int, lining_material, lining_thermal: dict,
+            engagement: bool) -> RegionSpec | None:
     where = f"{TABLE}.regions.{name}"
     entry = read.table(where, entry, REGION_KEYS)
     body = read.text(f"{where}.body", entry.get("body"))
@@ -166,8 +168,10 @@ def _region(read: _Reader, name: str, entry: dict, lining_layers: int, lining_ma
     if not isinstance(is_lining, bool):
         read.problems.append(f"{where}.lining = {shown(is_lining)}: allowed: true or false")
         is_lining = False
+    thermal = {}
     if is_lining:
-        for key in ("youngs_modulus", "poissons_ratio"):
+        thermal = dict(lining_thermal)
+        for key in ("youngs_modulus", "poissons_ratio", *THERMAL_KEYS):
             if key in entry:
                 read.problems.append(f"{where}.{key} = {shown(entry[key])}: a lining region takes its material from "
                                      f"the [lining] table (lining.{key}); remove it here")
@@ -181,6 +185,16 @@ def _region(read: _Reader, name: str, entry: dict, lining_layers: int, lining_ma
                 continue
             value = read.number(f"{where}.{key}", entry[key], rng["low"], rng["high"], unit, rng["why"])
             modulus, poisson = (value, poisson) if key == "youngs_modulus" else (modulus, value)
+        for key in THERMAL_KEYS:
+            rng = BODY_THERMAL_RANGES[key]
+            if key in entry:
+                thermal[key] = read.number(f"{where}.{key}", entry[key], rng["low"], rng["high"], THERMAL_UNITS[key],
+                                           rng["why"])
+            elif engagement:
+                # a drawn region's material is always the user's own: the hot engagement needs its heat data
+                read.problems.append(f"{where}.{key}: missing; the region's material was given (youngs_modulus), "
+                                     f"so with [engagement] its thermal properties must be given too "
+                                     f"({rng['low']:g} ≤ value ≤ {rng['high']:g} {THERMAL_UNITS[key]})")
     choice = {}
     for key in ("layer", "label"):
         if key in entry:
@@ -199,7 +213,8 @@ def _region(read: _Reader, name: str, entry: dict, lining_layers: int, lining_ma
         return None
     if None in (body, modulus, poisson) or None in choice.values():
         return None
-    return RegionSpec(name, body, modulus, poisson, lining_layers=lining_layers if is_lining else 0, **choice)
+    return RegionSpec(name, body, modulus, poisson, lining_layers=lining_layers if is_lining else 0, **choice,
+                      **{k: v for k, v in thermal.items() if v is not None})
 
 
 def _face(read: _Reader, where: str, name: str, entry: Any) -> FaceSpec | None:
@@ -227,9 +242,13 @@ def _friction(read: _Reader, name: str, entry: Any) -> FrictionSpec | None:
     return FrictionSpec(name, body_a, body_b, select, mate, lining_body=lining_body)
 
 
-def section_file_of(data: dict, source: str, lining_layers: int, lining_material) -> tuple[SectionFileSpec | None, str, list[str]]:
+def section_file_of(data: dict, source: str, lining_layers: int, lining_material,
+                    lining_thermal: dict | None = None) -> tuple[SectionFileSpec | None, str, list[str]]:
     """The case's section-file spec (None when it has no ``[section_file]``), the drawing's SHA-256 and the
-    problems found (each names its key).  ``source`` is the case file (relative paths start beside it)."""
+    problems found (each names its key).  ``source`` is the case file (relative paths start beside it);
+    ``lining_material`` (E, ν) and ``lining_thermal`` (THERMAL_KEYS -> value) are the [lining] table's, which
+    the lining regions take."""
+    engagement = isinstance(data.get("engagement"), dict)       # the hot engagement needs every region's heat data
     problems: list[str] = []
     if TABLE not in data:
         return None, "", problems
@@ -280,7 +299,7 @@ def section_file_of(data: dict, source: str, lining_layers: int, lining_material
             bodies.append(BodySpec(name, role, label))
     regions = []
     for name, entry in _entries(read, f"{TABLE}.regions", table.get("regions", {})).items():
-        region = _region(read, name, entry, lining_layers, lining_material)
+        region = _region(read, name, entry, lining_layers, lining_material, lining_thermal or {}, engagement)
         if region is not None:
             regions.append(region)
     friction = [f for name, entry in _entries(read, f"{TABLE}.friction", table.get("friction", {})).items()
@@ -315,7 +334,9 @@ def describe_keys() -> list[tuple[str, str]]:
     """The table's keys and what each means (the README's section-file key list)."""
     out = [(f"{TABLE}.{k}", v) for k, v in TOP_KEYS.items()]
     out.append((f"{TABLE}.regions.NAME", "body; layer (DXF) or label / index / inside (STEP/IGES/BREP); "
-                                          "youngs_modulus (MPa) and poissons_ratio, or lining = true"))
+                                          "youngs_modulus (MPa) and poissons_ratio, or lining = true; "
+                                          "thermal_conductivity, density, specific_heat, expansion_coefficient "
+                                          "(required with [engagement], ranges as the body tables')"))
     out.append((f"{TABLE}.friction.NAME", "body_a, body_b, optional lining_body; the curve choice; optional "
                                            "mate_… choice for body_b's side"))
     out.append(("curve choice", "exactly one of layer, named (DXF group / CAD name), curve_index (CAD), "

@@ -106,6 +106,12 @@ class RegionSpec:
     index: int | None = None
     inside: tuple[float, float] | None = None
     lining_layers: int = 0         # > 0: a lining, meshed as a structured strip this many elements thick
+    # the hot engagement's material data (the case's units: W/(m·K), kg/m³, J/(kg·K), 1/K); None when not
+    # given (a case without [engagement] needs none); a lining region has the [lining] table's
+    thermal_conductivity: float | None = None
+    density: float | None = None
+    specific_heat: float | None = None
+    expansion_coefficient: float | None = None
 
     def __post_init__(self):
         if self.inside is not None:

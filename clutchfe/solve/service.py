@@ -31,9 +31,13 @@ from .model import fe_model_of
 # The prepared model's force: any positive value serves (the solve is linear in the load
 # at fixed contact); a fixed one keeps results independent of the order samples come in.
 REFERENCE_FORCE = 1000.0        # N
-# Case keys (or whole tables, ending in ".") that change neither the mesh nor the stiffness.
+# Case keys (or whole tables, ending in "."; or a key of every table, starting with "*.") that change
+# neither the mesh nor the stiffness.  The hot engagement's tables and the thermal properties of every
+# material are read by its own heat model on the prepared mesh, never by the stiffness.
 SOLVE_PARAMETERS = ("name", "description", "interface.friction_coefficient", "load.axial_force",
-                    "lining.allowable_pressure", "misalignment.", "requirement.", "wear.", "verification.")
+                    "lining.allowable_pressure", "misalignment.", "requirement.", "wear.", "verification.",
+                    "engagement.", "cooling.", "*.thermal_conductivity", "*.density", "*.specific_heat",
+                    "*.expansion_coefficient")
 # Prepared models kept; one of the default demo is a few MB (a tilted one tens of MB).
 CACHE_SIZE = 4
 GUIDANCE_CHOICES = ("held", "self_aligning")
@@ -41,9 +45,14 @@ GUIDANCE_CHOICES = ("held", "self_aligning")
 
 def stiffness_key(case: Case) -> str:
     """Cases with the same key share a mesh and a stiffness: one prepared model serves them."""
-    fixed = {k: v for k, v in case.flat().items()
-             if not any(k == p or (p.endswith(".") and k.startswith(p)) for p in SOLVE_PARAMETERS)}
+    fixed = {k: v for k, v in case.flat().items() if not any(_solve_parameter(k, p) for p in SOLVE_PARAMETERS)}
     return hashlib.sha256(json.dumps(fixed, sort_keys=True, default=str).encode()).hexdigest()[:16]
+
+
+def _solve_parameter(key: str, pattern: str) -> bool:
+    if pattern.startswith("*."):
+        return key.rpartition(".")[2] == pattern[2:]
+    return key == pattern or (pattern.endswith(".") and key.startswith(pattern))
 
 
 def reference_case(case: Case) -> Case:

@@ -15,7 +15,7 @@ from pathlib import Path
 from ..case import Case, CaseError, load_case
 from ..toml_input import read_toml, shown
 from ..names import label_problem, safe_label
-from ..schema import SCHEMA, Key, describe_range
+from ..schema import SCHEMA, THERMAL_KEYS, Key, describe_range
 
 DISTRIBUTIONS = {                       # distribution -> its parameters
     "uniform": ("low", "high"),
@@ -47,6 +47,9 @@ OUTPUTS = {
     "peak_pressure_worn_in_MPa": "peak contact pressure after the wear-in",
     "tilt_moment_Nm": "moment on the guidance of a tilted or offset pressed part",
     "open_area_fraction": "share of the friction face open (tilted or offset case)",
+    "torque_hot_worst_Nm": "least FE torque capacity while slipping ([engagement] in the base case)",
+    "engagement_peak_temperature_C": "highest temperature of the section during the hot engagement",
+    "effective_radius_shift_worst_mm": "hot minus cold FE effective radius at the worst instant",
 }
 CORE_OUTPUTS = ("torque_fe_Nm", "capacity_position", "peak_pressure_MPa", "effective_radius_mm")
 TOP_KEYS = ("name", "description", "base_case", "method", "samples", "seed", "outputs", "vary", "limit")
@@ -243,6 +246,10 @@ def _vary(entry: dict, k: int, base: Case | None, problems: list[str]):
         problems.append(f"{where}.key = {shown(full)}: belongs to {' or '.join(spec.kinds)} cases; the base case is "
                         f"kind = {shown(base.kind)}")
         return None
+    unused = _unused_by_base(full, base)
+    if unused:
+        problems.append(f"{where}.key = {shown(full)}: {unused}")
+        return None
     if full.endswith("_stiffness") and base is not None and base.support.type != "springs":
         problems.append(f"{where}.key = {shown(full)}: the base case's support.type = {shown(base.support.type)} ignores it; "
                         "allowed: set support.type = 'springs' in the base case")
@@ -254,6 +261,26 @@ def _vary(entry: dict, k: int, base: Case | None, problems: list[str]):
     if "distribution" in entry:
         return _distribution(entry, where, full, spec, problems)
     return _grid(entry, where, full, spec, problems)
+
+
+def _unused_by_base(full: str, base: Case | None) -> str:
+    """Why the base case would not use the key (every sample would be the same, or invalid), or ''.
+    The hot engagement's keys (its tables and every material's thermal properties) vary like any other
+    key, on a base case that asks for it."""
+    if base is None:
+        return ""
+    table, _, key = full.rpartition(".")
+    hot = table in ("engagement", "cooling") or key in THERMAL_KEYS
+    if hot and base.engagement is None:
+        return ("only the hot engagement uses it and the base case has no [engagement] table; allowed: add "
+                "[engagement] to the base case")
+    if key in ("driven_inertia", "drag_torque") and table == "engagement" \
+            and base.engagement.speed_law != "inertia":
+        return (f"only used with engagement.speed_law = 'inertia' (the base case has "
+                f"{base.engagement.speed_law!r}); allowed: set speed_law = 'inertia' in the base case")
+    if key in THERMAL_KEYS and base.section_file is not None and table != "lining":
+        return "the base case draws its section: the bodies' thermal properties are in its [section_file] regions"
+    return ""
 
 
 def _number(entry: dict, name: str, where: str, problems: list[str]) -> float | None:
@@ -393,6 +420,12 @@ def _limit(entry, base: Case | None, problems: list[str]) -> Limit | None:
     spec = case_key(full) if isinstance(full, str) else None
     ignored = full.endswith("_stiffness") and base is not None and base.support.type != "springs" \
         if isinstance(full, str) else False
+    if isinstance(full, str) and spec is not None and (full.partition(".")[0] in ("engagement", "cooling")
+                                                       or full.rpartition(".")[2] in THERMAL_KEYS):
+        # the limit criteria are the cold ones (required torque, allowable pressure): these keys do not move them
+        problems.append(f"limit.key = {shown(full)}: the limit criteria are read on the cold case, which the hot "
+                        "engagement's keys do not change; allowed: vary it with [[vary]] instead")
+        return None
     if spec is None or spec.kind is not float or (base is not None and base.kind not in spec.kinds) \
             or ignored:
         problems.append(f"limit.key = {shown(full)}: allowed: a numeric case key of this case kind, e.g. "
