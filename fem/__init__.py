@@ -1,5 +1,7 @@
 """Axisymmetric elastic contact solve (scikit-fem)."""
 from .assembly import System, assemble
+from .engagement import (CouplingError, EngagementHistory, EngagementStep, FrictionHeating, SlipDuty,
+                         run_engagement)
 from .lcp import ContactError, solve_lcp
 from .model import (ContactPair, FaceLoad, FacePressure, FeModel, FeResult, InterfaceResult,
                     RingLoad, SpringSupport)
@@ -7,7 +9,8 @@ from .solve import ContactSolver, linear_solve, solve
 from .stress import vertex_stress
 
 __all__ = [
-    "ContactError", "ContactPair", "ContactSolver", "FaceLoad", "FacePressure", "FeModel", "FeResult",
-    "InterfaceResult", "RingLoad", "SpringSupport", "System", "assemble", "linear_solve",
-    "solve", "solve_lcp", "vertex_stress",
+    "ContactError", "ContactPair", "ContactSolver", "CouplingError", "EngagementHistory",
+    "EngagementStep", "FaceLoad", "FacePressure", "FeModel", "FeResult",
+    "FrictionHeating", "InterfaceResult", "RingLoad", "SlipDuty", "SpringSupport", "System", "assemble",
+    "linear_solve", "run_engagement", "solve", "solve_lcp", "vertex_stress",
 ]

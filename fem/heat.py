@@ -283,6 +283,7 @@ class HeatSystem:
     weights: np.ndarray             # ∫ ρc φ_i dV (row sums of M): stored energy = weights · θ
     _unit_flux: dict = field(default_factory=dict, repr=False)
     _face_bases: dict = field(default_factory=dict, repr=False)
+    _node_area: np.ndarray | None = field(default=None, repr=False)
 
     @property
     def N(self) -> int:
@@ -346,8 +347,10 @@ class HeatSystem:
         return np.concatenate(parts) if parts else np.zeros(0)
 
     def node_area(self) -> np.ndarray:
-        parts = [i.area for i in self.interfaces]
-        return np.concatenate(parts) if parts else np.zeros(0)
+        if self._node_area is None:     # every solve asks; the interfaces are fixed once assembled
+            parts = [i.area for i in self.interfaces]
+            self._node_area = np.concatenate(parts) if parts else np.zeros(0)
+        return self._node_area
 
     def stored_by_body(self, rise_change: np.ndarray) -> dict[str, float]:
         """∫ ρc Δθ dV of each body, mJ."""
@@ -571,6 +574,11 @@ class EnergyAccount:
 
 # ---------------------------------------------------------------- solves
 
+# the interface response A⁻¹ D_Iᵀ is kept dense (it replaces a back-substitution per solve) up to
+# this many entries (16 MB); above, each solve back-substitutes the interface flows instead
+MAX_RESPONSE_ENTRIES = 2_000_000
+
+
 class _Factor:
     """One factorised step matrix c0 M + A on the free dofs, and its interface compliance."""
 
@@ -585,18 +593,61 @@ class _Factor:
         self.lu = factorise(self.A_ii)
         self.D_i = system.D[:, self.inner].tocsc()
         self.D_f = system.D[:, system.fixed].tocsr()
+        self.Dt_i = self.D_i.T.tocsr()
+        # the rows of the fixed dofs' balance, for their heat flows (A θ + Dᵀ ν − b at them)
+        self.A_f = self.A[system.fixed].tocsr()
+        self.Dt_f = system.D.T.tocsr()[system.fixed]
+        self.free_row = np.asarray(abs(self.D_i).sum(axis=1)).ravel() > 0
         self._S = None
+        self._W = None
+        self._states: dict[bytes, tuple] = {}
+
+    def interface_state(self, system: HeatSystem, h: np.ndarray) -> tuple[np.ndarray, np.ndarray | None]:
+        """The interface nodes whose flow is an unknown (tied or conducting, not both sides fixed)
+        and the inverse of their matrix S_aa + diag(1/(h A)), (empty, None) if there are none;
+        kept for the last few interface states (a loop over time steps meets the same closed set
+        again and again).  A pseudo-inverse where dependent ties (a closed loop of pairs) make
+        the matrix singular."""
+        key = h.tobytes()
+        if key not in self._states:
+            area = system.node_area()
+            a = np.flatnonzero((np.isinf(h) | (h * area > 0)) & self.free_row)
+            inverse = None
+            if a.size:
+                c = np.zeros(a.size)
+                finite = ~np.isinf(h[a])
+                c[finite] = 1.0 / (h[a][finite] * area[a][finite])
+                Saa = self.compliance()[np.ix_(a, a)]
+                Saa[np.diag_indices(a.size)] += c
+                try:
+                    inverse = np.linalg.inv(Saa)
+                except np.linalg.LinAlgError:
+                    inverse = np.linalg.pinv(Saa)
+            if len(self._states) >= 16:
+                self._states.pop(next(iter(self._states)))
+            self._states[key] = (a, inverse)
+        return self._states[key]
+
+    def interface_response(self):
+        """W = A_II⁻¹ D_Iᵀ (dense, free dofs × interface nodes) or None when larger than
+        MAX_RESPONSE_ENTRIES; computed with the compliance."""
+        self.compliance()
+        return self._W
 
     def compliance(self) -> np.ndarray:
         """S = D_I A_II⁻¹ D_Iᵀ (dense, interface nodes²), in column blocks."""
         if self._S is None:
             k = self.D_i.shape[0]
+            keep = self.inner.size * k <= MAX_RESPONSE_ENTRIES
+            W = np.empty((self.inner.size, k)) if keep else None
             S = np.empty((k, k))
             Dt = self.D_i.T.tocsc()
             for j in range(0, k, 64):
                 X = self.lu.solve(Dt[:, j:j + 64].toarray())
                 S[:, j:j + 64] = self.D_i @ X
-            self._S = 0.5 * (S + S.T)
+                if keep:
+                    W[:, j:j + 64] = X
+            self._S, self._W = 0.5 * (S + S.T), W
         return self._S
 
 
@@ -608,23 +659,14 @@ def _solve_with_interfaces(system: HeatSystem, fac: _Factor, b: np.ndarray,
     theta_i = fac.lu.solve(rhs)
     nu = np.zeros(system.D.shape[0])
     if nu.size:
-        area = system.node_area()
-        free_row = np.asarray(abs(fac.D_i).sum(axis=1)).ravel() > 0
-        active = (np.isinf(h) | (h * area > 0)) & free_row
-        if np.any(active):
-            with one_blas_thread():
-                S = fac.compliance()
+        with one_blas_thread():
+            a, inverse = fac.interface_state(system, h)
+            if a.size:
                 g0 = fac.D_i @ theta_i + fac.D_f @ theta_f
-                a = np.flatnonzero(active)
-                c = np.zeros(a.size)
-                finite = ~np.isinf(h[a])
-                c[finite] = 1.0 / (h[a][finite] * area[a][finite])
-                Saa = S[np.ix_(a, a)] + np.diag(c)
-                try:
-                    nu[a] = np.linalg.solve(Saa, g0[a])
-                except np.linalg.LinAlgError:      # dependent ties (a closed loop of pairs)
-                    nu[a] = np.linalg.lstsq(Saa, g0[a], rcond=None)[0]
-            theta_i = theta_i - fac.lu.solve(fac.D_i.T @ nu)
+                nu[a] = inverse @ g0[a]
+                W = fac.interface_response()
+                # A⁻¹ Dᵀ ν from the kept response: a product instead of a back-substitution
+                theta_i = theta_i - (W @ nu if W is not None else fac.lu.solve(fac.Dt_i @ nu))
     theta = np.empty(system.N)
     theta[fac.inner] = theta_i
     theta[system.fixed] = theta_f
@@ -716,26 +758,16 @@ class Transient:
         ``closed``: per thermal contact, one bool per interface node (default: all closed);
         ``restart``: take the step by backward Euler (after a jump of the load).
         """
+        bdf2, a0, history = self._scheme(dt, restart)
         dt = float(dt)
-        if not (math.isfinite(dt) and dt > 0):
-            raise ValueError(f"time step must be > 0 s, got {dt}")
         s = self.system
-        bdf2 = (self.scheme == "bdf2" and not restart and self._previous is not None
-                and dt / self._dt_previous <= BDF2_MAX_RATIO)
-        if bdf2:
-            w = dt / self._dt_previous
-            a0, a1, a2 = (1 + 2 * w) / (1 + w), -(1 + w), w * w / (1 + w)
-            history = s.M @ (a1 * self._theta + a2 * self._previous)
-        else:
-            a0 = 1.0
-            history = -(s.M @ self._theta)
         fq = s.flux_vector(fluxes)
         b = fq + s.f_ambient - history / dt
         fac = self._factor(a0 / dt)
         theta, nu = _solve_with_interfaces(s, fac, b, s.coefficients(closed))
         q_in = float(fq.sum())
         q_conv = _film_rates(s, theta)
-        q_fixed = _fixed_rates(s, (fac.A @ theta + s.D.T @ nu - b)[s.fixed], s.fixed_face)
+        q_fixed = _fixed_rates(s, fac.A_f @ theta + fac.Dt_f @ nu - b[s.fixed], s.fixed_face)
         if bdf2:                                   # trapezoid rule, like the scheme's order
             p_in, p_conv, p_fixed = self._rates
             e_in = 0.5 * dt * (p_in + q_in)
@@ -748,6 +780,20 @@ class Transient:
         return HeatStep(self.time, dt, "bdf2" if bdf2 else "backward_euler", theta, s.reference,
                         e_in, e_conv, e_fixed, _split_flows(s, nu), (q_in, q_conv, q_fixed),
                         self._token)
+
+    def _scheme(self, dt: float, restart: bool) -> tuple[bool, float, np.ndarray]:
+        """Whether a step of ``dt`` is BDF2, its a0 and its history term M (a1 θ_n + a2 θ_(n−1))."""
+        dt = float(dt)
+        if not (math.isfinite(dt) and dt > 0):
+            raise ValueError(f"time step must be > 0 s, got {dt}")
+        s = self.system
+        bdf2 = (self.scheme == "bdf2" and not restart and self._previous is not None
+                and dt / self._dt_previous <= BDF2_MAX_RATIO)
+        if bdf2:
+            w = dt / self._dt_previous
+            a0, a1, a2 = (1 + 2 * w) / (1 + w), -(1 + w), w * w / (1 + w)
+            return True, a0, s.M @ (a1 * self._theta + a2 * self._previous)
+        return False, 1.0, -(s.M @ self._theta)
 
     def accept(self, step: HeatStep) -> None:
         if step.token != self._token or step.start != self.time:
@@ -773,6 +819,75 @@ class Transient:
         by_body = self.system.stored_by_body(change)
         return EnergyAccount(self._in, dict(self._fixed), dict(self._conv),
                              float(self.system.weights @ change), by_body)
+
+
+class LoadResponse:
+    """The linear response of a step's end rise to heat loads: for loads F x (F: heat flow per dof
+    and per unknown, mW, N × m; or F R with ``right`` R) added to a step's right-hand side,
+    θ = θ(x = 0) + H x with
+
+        H = (I − W_a (S_aa + diag(1/(h A)))⁻¹ D_a) A⁻¹ F,     W = A⁻¹ Dᵀ
+
+    for the step's matrix A and interface state (fem/engagement.py's coupled solve uses O H for an
+    observation O, n × N, its gap map).  Per distinct step matrix O A⁻¹ F, O W and D A⁻¹ F are one
+    block back-substitution of F's columns (kept); per interface state O H is a small dense solve
+    (kept too, the last ``MAX_STATES`` of them)."""
+
+    MAX_STATES = 64
+
+    def __init__(self, run: Transient, loads, observe: np.ndarray, right=None):
+        self.run, self.F = run, sp.csc_matrix(loads, dtype=float)
+        self.O = np.asarray(observe, dtype=float)
+        # loads given as a product F R (R: m' × m) back-substitute only F's m' columns
+        self.R = None if right is None else np.asarray(sp.csr_matrix(right).toarray())
+        if self.F.shape[0] != run.system.N or self.O.shape[1] != run.system.N:
+            raise ValueError(f"loads (N × m) and observe (n × N) with N = {run.system.N} heat dofs expected")
+        self._factors: dict[float, tuple] = {}
+        self._states: dict[tuple, np.ndarray] = {}
+
+    def matrix(self, dt: float, closed: Mapping[str, np.ndarray] | None = None,
+               restart: bool = False) -> np.ndarray:
+        """O H (n × m) of the step ``trial(dt, …, closed, restart)`` would take."""
+        run = self.run
+        _, a0, _ = run._scheme(dt, restart)
+        c0 = a0 / float(dt)
+        h = run.system.coefficients(closed)
+        key = (c0, h.tobytes())
+        if key not in self._states:
+            fac = run._factor(c0)
+            if c0 not in self._factors:
+                self._factors[c0] = self._blocks(fac)
+            OY, OW, DY = self._factors[c0]
+            a, inverse = fac.interface_state(run.system, h) if DY.shape[0] else (np.zeros(0, int), None)
+            out = OY
+            if a.size:
+                with one_blas_thread():
+                    out = OY - OW[:, a] @ (inverse @ DY[a])
+            if self.R is not None:
+                out = out @ self.R
+            if len(self._states) >= self.MAX_STATES:
+                self._states.pop(next(iter(self._states)))
+            self._states[key] = out
+        return self._states[key]
+
+    def _blocks(self, fac: _Factor, width: int = 64) -> tuple:
+        """O A⁻¹ F, O A⁻¹ Dᵀ, D A⁻¹ F, back-substituted in column blocks (only the small products
+        are kept, so the memory is that of the results)."""
+        O_i, F_i = self.O[:, fac.inner], self.F[fac.inner]
+        m, k = F_i.shape[1], fac.D_i.shape[0]
+        OY, DY, OW = np.empty((O_i.shape[0], m)), np.empty((k, m)), np.empty((O_i.shape[0], k))
+        with one_blas_thread():
+            for j in range(0, m, width):
+                Y = fac.lu.solve(F_i[:, j:j + width].toarray())
+                OY[:, j:j + width], DY[:, j:j + width] = O_i @ Y, fac.D_i @ Y
+            W = fac.interface_response() if k else None
+            if W is not None:
+                OW[:] = O_i @ W
+            else:
+                Dt = fac.Dt_i.tocsc()
+                for j in range(0, k, width):
+                    OW[:, j:j + width] = O_i @ fac.lu.solve(Dt[:, j:j + width].toarray())
+        return OY, OW, DY
 
 
 def steady_state(system: HeatSystem, fluxes: Mapping[str, Flux] | None = None,

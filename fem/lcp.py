@@ -11,7 +11,10 @@ lam >= 0, B^T lam = -e, with delta the multipliers of the balance equations
 (Nocedal & Wright, Numerical Optimization 2006, §16.1 KKT conditions).
 
 Solved by a primal-dual active set (Hintermueller, Ito & Kunisch, SIAM J. Optim.
-2003: semismooth Newton, usually converges in a few sweeps).  Should it cycle,
+2003: semismooth Newton, usually converges in a few sweeps), from full contact or from a
+given closed set (a warm start: a sequence of nearby problems, e.g. the time steps of
+fem/engagement.py, then needs one or two sweeps; the answer is the same, the exact solve on
+the final closed set).  Should it cycle,
 a primal active-set method (Nocedal & Wright 2006, Algorithm 16.3) finishes
 from a feasible point found by linear programming.  Where balance and bound
 constraints are dependent (degenerate) an active set can cycle; then the problem
@@ -81,9 +84,13 @@ def _scales(C, g, B, e, lam):
     return GAP_TOLERANCE * disp, FORCE_TOLERANCE * force
 
 
-def primal_dual(C, g, B, e, max_iter=100):
+def primal_dual(C, g, B, e, max_iter=100, start=None):
+    """The primal-dual active set from full contact, or from ``start`` (one bool per node); None
+    when it does not settle.  C need not be symmetric (fem/engagement.py's coupled compliance)."""
     n = g.size
-    S = np.ones(n, dtype=bool)       # start from full contact
+    S = np.ones(n, dtype=bool) if start is None else np.array(start, dtype=bool)
+    if S.shape != (n,):
+        raise ValueError(f"start: one closed flag per contact node ({n}) expected, got {S.shape}")
     for it in range(1, max_iter + 1):
         sol = _kkt(C, g, B, e, S)
         if sol is None:
@@ -196,11 +203,14 @@ def _other_translation(C, g, B, lam, tol_g):
     return res.x if res.status == 0 else None
 
 
-def solve_lcp(C, g, B, e) -> LcpSolution:
-    """Exact solution of the condensed contact problem (see module docstring)."""
+def solve_lcp(C, g, B, e, start=None) -> LcpSolution:
+    """Exact solution of the condensed contact problem (see module docstring); ``start``: a
+    closed set to warm-start the active set from (one bool per node)."""
     if g.size == 0:
         raise ContactError("no contact nodes: the bodies cannot transmit the load")
-    sol = primal_dual(C, g, B, e)
+    sol = primal_dual(C, g, B, e, start=start)
+    if sol is None and start is not None:      # a poor start may cycle where full contact does not
+        sol = primal_dual(C, g, B, e)
     if sol is None:
         sol = primal_active_set(C, g, B, e)
     if sol is None:

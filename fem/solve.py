@@ -190,13 +190,55 @@ class ContactSolver:
     def initial_gaps(self) -> list[np.ndarray]:
         return [face.gap0.copy() for face in self.faces]
 
+    def extra_gap(self, extra_load: np.ndarray) -> np.ndarray:
+        """Giᵀ K⁻¹ f: the change of every contact gap (mm) that an extra nodal load f (N, every
+        dof) makes with the contacts open; one back-substitution with the stored factor."""
+        return self.Gi.T @ self._solve_K(self._extra_inner(extra_load))
+
+    def gap_response(self, load_matrix) -> np.ndarray:
+        """Giᵀ K⁻¹ B (contact nodes × columns of B) for a load operator B (every dof × m), e.g.
+        fem.thermal_strain.thermal_load_matrix: the gap change of any load B x is then the product
+        (Giᵀ K⁻¹ B) x, at the cost of one block back-substitution of K⁻¹ Gi (K is symmetric)."""
+        B = sp.csr_matrix(load_matrix)
+        if B.shape[0] != self.system.basis.N:
+            raise ValueError(f"load operator: one row per dof ({self.system.basis.N}) expected, "
+                             f"got {B.shape[0]}")
+        with one_blas_thread():
+            X = self._solve_K(self.Gi.toarray()) if self.g0.size else np.zeros((self.prep.inner.size, 0))
+        return np.asarray((B[self.prep.inner].T @ X).T)
+
+    def displacement_of(self, lam: np.ndarray, delta, load_scale: float = 1.0,
+                        extra_load: np.ndarray | None = None) -> np.ndarray:
+        """u (every dof, mm) of a contact state: contact forces ``lam`` (N, one per contact node),
+        free bodies' translations ``delta`` (mm), the model's loads × ``load_scale`` and an extra
+        load; one back-substitution."""
+        rhs = load_scale * self.f_inner + self.Gi @ np.asarray(lam, dtype=float)
+        if extra_load is not None:
+            rhs = rhs + self._extra_inner(extra_load)
+        return self.prep.expand(self._solve_K(rhs), np.asarray(delta, dtype=float))
+
+    def _extra_inner(self, extra_load) -> np.ndarray:
+        f = np.asarray(extra_load, dtype=float)
+        if f.shape != (self.system.basis.N,) or not np.all(np.isfinite(f)):
+            raise ValueError(f"extra_load: one finite value per dof ({self.system.basis.N}) expected, "
+                             f"got shape {f.shape}")
+        return f[self.prep.inner]
+
     def solve(self, gaps: list[np.ndarray] | None = None, load_scale: float = 1.0,
-              fields: bool = True) -> FeResult:
+              fields: bool = True, extra_load: np.ndarray | None = None, start=None) -> FeResult:
         """Contact under ``load_scale`` times the model's loads.
 
         ``gaps``: initial normal gap (mm) at every FE node of each interface, replacing
         the model's (e.g. with wear depth added); ``fields=False`` skips displacement
         and stress fields (interface results only, for loops over many states).
+        ``extra_load``: a nodal load (N, every dof) added to the model's loads, not scaled by
+        ``load_scale`` (e.g. the thermal load B θ); it changes the gaps by Giᵀ K⁻¹ f (one
+        back-substitution, no new factorisation) and enters the displacement field.  It must
+        have no axial resultant on a free body (the thermal and centrifugal loads have none):
+        the free bodies' balance ``e`` is the model's loads alone.  The stress field is
+        ``vertex_stress`` of the total displacement (σ = C ε, no thermal strain subtracted).
+        ``start``: closed flags (one per contact node, the interfaces in order, e.g. a nearby
+        state's ``lam > 0``) to warm-start the active set from; the answer does not depend on it.
         """
         timings = {k: v for k, v in self.timings.items() if k != "prepare"}
         t0 = time.perf_counter()
@@ -204,16 +246,19 @@ class ContactSolver:
         g0 = self.g0 if gaps is None else np.concatenate([np.asarray(g, float) for g in gaps])
         if g0.shape != self.g0.shape or not np.all(np.isfinite(g0)):
             raise ValueError("one finite gap per interface node expected")
+        # a thermal (or centrifugal) load is self-equilibrated body by body, so e stays the model's
         e = load_scale * self.e
         with one_blas_thread():
             with _clock(timings, "contact"):
                 g = g0 + load_scale * self.g_load
-                sol = solve_lcp(self.C, g, self.B, e) if g.size else LcpSolution(
+                if extra_load is not None:
+                    g = g + self.extra_gap(extra_load)
+                sol = solve_lcp(self.C, g, self.B, e, start) if g.size else LcpSolution(
                     np.zeros(0), np.zeros(0), np.zeros(0), 0, "no contact")
             interfaces = _interfaces(self.faces, sol)
             if fields:
                 with _clock(timings, "stress"):
-                    u = prep.expand(self._solve_K(load_scale * self.f_inner + self.Gi @ sol.lam), sol.delta)
+                    u = self.displacement_of(sol.lam, sol.delta, load_scale, extra_load)
                     stress = vertex_stress(system, u)
                 displacement = u[system.basis.nodal_dofs]
                 approach = {system.model.body_names[j]: mean_axial_displacement(system, u, j)
