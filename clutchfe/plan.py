@@ -33,6 +33,7 @@ from .provenance import CAUTION, __version__, versions
 if TYPE_CHECKING:       # the types only; the stages themselves where they run (start-up, see above)
     from .analyses.tilt import TiltResult
     from .analyses.wear import WearRun
+    from .analyses.engagement import EngagementRun
     from .solve import SolvedCase, SolveService
     from .verification import TableOrigin
 
@@ -46,6 +47,7 @@ class CaseResult:
     comparison: Comparison
     tilt: TiltResult | None = None      # the case has an axis tilt or a radial offset
     wear: WearRun | None = None         # the case has a [wear] table
+    engagement: EngagementRun | None = None     # the case has an [engagement] table (hot engagement)
 
     @property
     def case(self) -> Case:
@@ -81,6 +83,10 @@ def section_of(case: Case):
 
 def wants_wear(case: Case) -> bool:
     return "wear" in case.tables_given
+
+
+def wants_engagement(case: Case) -> bool:
+    return "engagement" in case.tables_given
 
 
 def analyse(case: Case, service: SolveService | None = None, fields: bool = True, progress=None) -> CaseResult:
@@ -130,7 +136,13 @@ def analyse(case: Case, service: SolveService | None = None, fields: bool = True
         from .analyses.wear import wear_in_case     # start-up (module docstring)
         step("wearing the interface in")
         wear = wear_in_case(solved, hand)
-    return CaseResult(solved, hand, comparison, tilt, wear)
+    engagement = None
+    if wants_engagement(case):
+        from .analyses.engagement import engagement_of_case     # start-up (module docstring)
+        step("hot engagement (time steps)")
+        bar = getattr(progress, "time_steps", None)
+        engagement = engagement_of_case(solved, hand, progress=bar("time steps of the engagement") if bar else None)
+    return CaseResult(solved, hand, comparison, tilt, wear, engagement)
 
 
 def gather_evidence(result: CaseResult, service: SolveService, progress=None) -> Evidence:
@@ -219,6 +231,14 @@ class _Steps:
         self.progress.update(self.task, advance=1, description=description)
         self.say(description)
 
+    def time_steps(self, description: str):
+        """A second bar for a long analysis's own steps: returns its callback ``(done, total)``."""
+        task = self.progress.add_task(description, total=None)
+
+        def advance(done: int, total: int) -> None:
+            self.progress.update(task, completed=done, total=total)
+        return advance
+
 
 def run_case(case: Case, folder: Path, console, service: SolveService | None = None, on_step=None) -> dict:
     """The whole run of one case: analyse, gather the evidence, write the results folder.
@@ -247,7 +267,7 @@ def run_case(case: Case, folder: Path, console, service: SolveService | None = N
 
     service = service if service is not None else SolveService()
     with Progress(transient=True, console=console) as progress:
-        step = _Steps(progress, total=8, listener=on_step)
+        step = _Steps(progress, total=8 + wants_engagement(case), listener=on_step)
         service.prepare(case)
         result = analyse(case, service, progress=step)
         evidence = gather_evidence(result, service, progress=step)
@@ -264,6 +284,9 @@ def run_case(case: Case, folder: Path, console, service: SolveService | None = N
     if result.wear is not None:
         from .analyses.wear import wear_table       # start-up (module docstring)
         extra_tables.append(wear_table(summary))
+    if result.engagement is not None:
+        from .analyses.engagement import engagement_table       # start-up (module docstring)
+        extra_tables.append(engagement_table(summary))
     print_table(console, case, summary, folder, extra_tables=extra_tables)
     return summary
 
@@ -277,6 +300,9 @@ def report_sections(result: CaseResult, summary: dict, folder: Path) -> dict:
     if result.wear is not None:
         from .analyses.wear.report import wear_section      # start-up (module docstring)
         sections["wear"] = wear_section(summary, folder, result.wear.results[-1].verdict)
+    if result.engagement is not None:
+        from .analyses.engagement.report import engagement_section      # start-up (module docstring)
+        sections["engagement"] = engagement_section(summary, folder, summary.get("engagement_warnings", []))
     return sections
 
 
@@ -291,6 +317,9 @@ def write_case_files(result: CaseResult, folder: Path) -> None:
     if result.wear is not None:
         from .analyses.wear import write_wear_files     # start-up (module docstring)
         write_wear_files(result.wear, result.case, result.hand, folder)
+    if result.engagement is not None:
+        from .analyses.engagement import write_engagement_files     # start-up (module docstring)
+        write_engagement_files(result.engagement, result.case, result.hand, solved.mesh, folder)
 
 
 def _run_verdict(summary: dict, result: CaseResult, evidence: Evidence | None) -> None:
@@ -306,6 +335,10 @@ def _run_verdict(summary: dict, result: CaseResult, evidence: Evidence | None) -
         for w in worn.warnings:
             if w.startswith("WARNING") and f"Worn in: {w}" not in summary["warnings"]:
                 summary["warnings"].append(f"Worn in: {w}")
+    if result.engagement is not None:
+        hot = [w for w in summary.get("engagement_warnings", []) if w.startswith("WARNING")]
+        verdict += [f"Hot engagement: {w}" for w in hot]
+        failed += [name for name in summary.get("engagement_failed", []) if name not in failed]
     study = evidence.mesh_study if evidence is not None else {}
     if study and not study.get("skipped") and not study.get("converged", True):
         failed.append("mesh convergence")
@@ -364,6 +397,11 @@ def summary_of(result: CaseResult, evidence: Evidence | None = None) -> dict:
         from .analyses.wear import wear_summary     # start-up (module docstring)
         keys = wear_summary(result.wear, case)
         summary["warnings"] += keys.pop("wear_warnings")
+        summary.update(keys)
+    if result.engagement is not None:
+        from .analyses.engagement import engagement_summary     # start-up (module docstring)
+        keys = engagement_summary(result.engagement, case)
+        summary["warnings"] += keys["engagement_warnings"]
         summary.update(keys)
     summary["versions"] = versions()
     summary["caution"] = CAUTION

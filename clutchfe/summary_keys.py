@@ -15,10 +15,11 @@ from dataclasses import dataclass
 
 from .readme import write_between_markers
 
-STAGES = ("case", "solve", "comparison", "tilt", "wear-in", "evidence", "report", "provenance")
+STAGES = ("case", "solve", "comparison", "tilt", "wear-in", "engagement", "evidence", "report", "provenance")
 
 # the stages whose keys are there only when the case asks for that analysis (the README says so)
-OPTIONAL_STAGES = {"tilt": "a case with an axis tilt or a radial offset", "wear-in": "a case with a [wear] table"}
+OPTIONAL_STAGES = {"tilt": "a case with an axis tilt or a radial offset", "wear-in": "a case with a [wear] table",
+                   "engagement": "a case with an [engagement] table"}
 
 MARKERS = ("<!-- summary keys: start -->", "<!-- summary keys: end -->")
 
@@ -174,6 +175,46 @@ SUMMARY_KEYS: tuple[SummaryKey, ...] = (
         ("wear_steady_step", "", _STEADY + "the first step (row of wear.csv) that met the steady test"),
         ("steady_wear_volume_mm3", "mm³", _STEADY + "the wear volume at which p·r first became steady"),
         ("steady_engagements", "", _STEADY + "engagements to the steady state (null without a duty)"),
+    )),
+    *_k("engagement", False, (
+        ("engagement_peak_temperature_C", "°C", "highest temperature of the section during the engagement"),
+        ("engagement_peak_temperature_radius_mm", "mm", "radius of that temperature"),
+        ("engagement_peak_temperature_z_mm", "mm", "axial position of that temperature"),
+        ("engagement_peak_temperature_time_s", "s", "time of that temperature from the start of the first slip"),
+        ("engagement_peak_temperature_body", "", "body where that temperature is"),
+        ("torque_hot_end_of_slip_Nm", "N·m", "FE torque capacity at the end of slip of the last engagement"),
+        ("capacity_position_hot_end_of_slip", "", "capacity position ξ at the end of slip of the last engagement"),
+        ("effective_radius_hot_end_of_slip_mm", "mm", "FE effective radius at the end of slip of the last engagement"),
+        ("engagement_end_of_slip_time_s", "s", "time of that end of slip"),
+        ("torque_hot_worst_Nm", "N·m", "least FE torque capacity while slipping (the worst instant)"),
+        ("capacity_position_hot_worst", "", "capacity position ξ at the worst instant"),
+        ("effective_radius_hot_worst_mm", "mm", "FE effective radius at the worst instant"),
+        ("engagement_worst_time_s", "s", "time of the worst instant"),
+        ("effective_radius_shift_end_of_slip_mm", "mm", "hot minus cold effective radius at the end of slip "
+                                                        "(> 0: the pressure moved outwards)"),
+        ("effective_radius_shift_worst_mm", "mm", "hot minus cold effective radius at the worst instant"),
+        ("peak_pressure_hot_MPa", "MPa", "highest FE contact pressure during the engagement"),
+        ("contact_area_fraction_hot_min", "", "least share of the friction area in contact during the engagement"),
+        ("thermal_coning_mm", "mm", "per body and friction face: how much more the face's outer end than its "
+                                    "inner end moved towards its mate, hot minus cold, at the end of slip "
+                                    "(> 0: the pressure moves outwards)"),
+        ("slip_energy_J", "J", "frictional heat generated over the engagement, ∫∫ μ p v dA dt (all modelled faces)"),
+        ("engagement_energy_balance_error", "", "(heat in − heat stored − heat convected) / their sum: the heat "
+                                                "account of the time steps (at most 0.01)"),
+        ("engagement_steps", "", "time steps of the engagement (thermal.csv rows after the cold one)"),
+        ("engagement_time_s", "s", "time at the end of the last step"),
+        ("engagement_lock_up_time_s", "s", 'only with engagement.speed_law = "inertia": slip time of the last '
+                                           "engagement until lock-up"),
+        ("coupling_iterations_max", "", "most pressure–temperature iterations of a time step"),
+        ("coupling_residual_max", "", "largest final residual of a time step: the last change of the interface "
+                                         "pressures over their peak"),
+        ("heat_factorisations", "", "distinct heat-step matrices factorised (each once)"),
+        ("conservative_hand_method_cold", "", '"both", "uniform wear" or "neither": which hand formula predicts '
+                                              "no more torque than the cold FE"),
+        ("conservative_hand_method_hot", "", "the same at the worst instant of the engagement"),
+        ("conservative_hand_method_hot_end_of_slip", "", "the same at the end of slip of the last engagement"),
+        ("engagement_warnings", "", "the warnings of the engagement (also in warnings)"),
+        ("engagement_failed", "", "the failed criteria of the engagement (also in failed_criteria)"),
     )),
     *_k("provenance", True, (
         ("version", "", "clutchfe version that wrote the file"),

@@ -13,7 +13,9 @@ from ..verification.table import format_error, format_tolerance
 from .report_html import data_uri, render
 
 # tables whose keys only matter when the case asks for that analysis
-OPTIONAL_TABLES = ("wear",)
+OPTIONAL_TABLES = ("wear", "engagement", "cooling")
+# keys of every material that only the hot engagement uses
+THERMAL_LEAVES = ("thermal_conductivity", "density", "specific_heat", "expansion_coefficient")
 # the three capacity margins: the assumption and its summary key
 MARGINS = (("FE contact", "capacity_margin_fe"), ("uniform pressure", "capacity_margin_uniform_pressure"),
            ("uniform wear", "capacity_margin_uniform_wear"))
@@ -43,6 +45,12 @@ ANALYSIS_ASSUMPTIONS = {
     "wear": ("Wear-in by Archard's law (wear depth rate ∝ p · sliding speed), backward-Euler steps on the "
              "condensed contact; the worn-in state does not depend on the wear coefficient.",
              "No wear-in in this solve: the results describe the new interface."),
+    "engagement": ("Hot engagement: transient axisymmetric heat conduction (linear triangles, BDF2 in time) in the "
+                   "same section with the frictional heat μ p ω r at the friction faces, shared across the "
+                   "interface by conduction (or by the stated partition factor), convection on the free faces; "
+                   "the thermal strain α ΔT loads the elastic contact, staggered to convergence in every step; "
+                   "properties independent of temperature, no wear during the engagement.",
+                   "No hot engagement in this solve: the results are at the stress-free (ambient) temperature."),
 }
 
 
@@ -126,6 +134,8 @@ def _inputs(case) -> str:
         table_name, _, leaf = key.rpartition(".")
         if table_name in OPTIONAL_TABLES and table_name not in case.tables_given:
             continue                # an analysis the case did not ask for: its defaults were not used
+        if leaf in THERMAL_LEAVES and "engagement" not in case.tables_given:
+            continue
         spec = SCHEMA.get(table_name, {}).get(leaf)
         unit = spec.unit if spec is not None else ""
         rows.append((key, f"{value:g}" if isinstance(value, float) else value, unit))
