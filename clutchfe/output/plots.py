@@ -69,6 +69,21 @@ def pressure_plot(path, surfaces, hand, xi: float, r_eff_mm: float, title_prefix
     return fig
 
 
+def hand_curves_over(ax, hand, title: str, up_label: str = "uniform pressure",
+                     uw_label: str = "uniform wear") -> None:
+    """Both hand curves at the same force under FE curves already drawn on ``ax``, and the pressure axes:
+    what the wear-in and the hot-engagement pictures share."""
+    curves = as_hand_capacity(hand).pressure_curves()
+    ax.plot(curves["r_mm"], curves["uniform_pressure_MPa"], "k--", linewidth=1.0, label=f"{up_label} [MPa]")
+    ax.plot(curves["r_mm"], curves["uniform_wear_MPa"], "k:", linewidth=1.6, label=f"{uw_label} [MPa]")
+    ax.set_xlabel(RADIUS_LABEL)
+    ax.set_ylabel(PRESSURE_LABEL)
+    ax.set_ylim(bottom=0.0)
+    ax.grid(True, linewidth=0.4, alpha=0.6)
+    ax.legend(fontsize="x-small", loc="best")
+    ax.set_title(title, fontsize="medium")
+
+
 def effective_radius_figure(r1: float, r2: float, r_up: float, r_uw: float, r_eff: float) -> Figure:
     if not (np.isfinite([r1, r2, r_up, r_uw, r_eff]).all() and r2 > r1):
         raise ValueError(f"need finite radii with r1 < r2, got r1 = {r1}, r2 = {r2}")

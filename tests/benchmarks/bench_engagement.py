@@ -20,7 +20,6 @@ Measured in this one run; nothing is asserted.
 from __future__ import annotations
 
 import sys
-import time
 from pathlib import Path
 
 import numpy as np
@@ -31,24 +30,15 @@ from clutchfe.fem.engagement import FrictionHeating, SlipDuty, run_engagement
 from clutchfe.fem.heat import (Convection, HeatModel, conductivity_from_si, film_coefficient_from_si,
                                heat_capacity_from_si)
 from clutchfe.solve import SolveService
+from tests.benchmarks.timing import REPEATS, best
 
 DEMO = Path(__file__).resolve().parents[2] / "cases" / "plate_tractor.toml"
-REPEATS = 3
 MU = 0.30
 MATERIALS = {   # k W/(m·K), ρ kg/m³, c J/(kg·K), α 1/K (from memory)
     "cast_iron": (50.0, 7200.0, 500.0, 11e-6),
     "steel": (50.0, 7850.0, 460.0, 12e-6),
     "facing": (0.5, 2000.0, 1000.0, 20e-6),
 }
-
-
-def best(fn, repeats=REPEATS):
-    t_best, out = float("inf"), None
-    for _ in range(repeats):
-        t0 = time.process_time()
-        out = fn()
-        t_best = min(t_best, time.process_time() - t0)
-    return t_best, out
 
 
 def heat_model(model, facing_modulus):

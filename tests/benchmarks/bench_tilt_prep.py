@@ -19,19 +19,10 @@ from pathlib import Path
 
 from clutchfe.case import load_case
 from clutchfe.solve import SolveService
+from tests.benchmarks.timing import REPEATS, best
 
 DEMO = Path(__file__).resolve().parents[2] / "cases" / "cone_capstan_tilted.toml"
 DIVISIONS = (16, 48, 96)
-REPEATS = 3
-
-
-def best(fn, repeats=REPEATS):
-    t_best, out = float("inf"), None
-    for _ in range(repeats):
-        t0 = time.process_time()
-        out = fn()
-        t_best = min(t_best, time.process_time() - t0)
-    return t_best, out
 
 
 def main(path=DEMO) -> None:

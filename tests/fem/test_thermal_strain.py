@@ -8,11 +8,11 @@ import pytest
 
 from clutchfe.fem import FaceLoad, SpringSupport, linear_solve, vertex_stress
 from clutchfe.fem.assembly import assemble, axial_dofs_of_body
-from clutchfe.fem.heat import FixedTemperature, HeatModel, assemble_heat, steady_state
 from clutchfe.fem.thermal_strain import (STEEL_EXPANSION, linear_solve_with_temperature,
                                          quadrature_thermal_stress, rise_at_quadrature, thermal_load,
                                          thermal_load_matrix, vertex_thermal_stress)
 
+from clutchfe.verification.thermal import PLATE_A, PLATE_B, PLATE_H, plate_coning
 from tests.helpers.models import Section
 
 E, NU, ALPHA = 210000.0, 0.3, STEEL_EXPANSION
@@ -65,33 +65,13 @@ def test_fully_constrained_body_is_hydrostatic():
     assert np.allclose(sig["von_mises"], 0.0, atol=1e-10 * abs(exact))
 
 
-# thin annular plate: bore 20 mm, rim 100 mm, 2 mm thick (h / b = 0.02), mid-plane at z = 0
-PLATE_A, PLATE_B, PLATE_H = 20.0, 100.0, 2.0
-
-
-def plate(order=2, cells=(40, 2)):
-    nr, nz = cells
-    s = Section().add_block("plate", np.linspace(PLATE_A, PLATE_B, nr + 1),
-                            np.linspace(-PLATE_H / 2, PLATE_H / 2, nz + 1))
-    return s, s.model([E], [NU], [True], element_order=order)
+# thin annular plate: bore 20 mm, rim 100 mm, 2 mm thick (h / b = 0.02), mid-plane at z = 0; the model is
+# the one of the verify suite's coning row (clutchfe/verification/thermal.py), faces held 20 and 20 + ΔT °C
 
 
 def coning(order=2, cells=(40, 2), dT=50.0):
-    """The plate's faces held at 20 and 20 + ΔT °C (fem/heat.py's steady state: linear through the
-    thickness), its rise put on the elasticity; returns (curvature from the mid-plane u_z, the
-    axial offset of the rim against the bore on the mid-plane, largest stress)."""
-    s, model = plate(order, cells)
-    heat = HeatModel(model, [K], [RC], 20.0, fixed=[FixedTemperature("plate_bottom", 20.0),
-                                                    FixedTemperature("plate_top", 20.0 + dT)])
-    heat_system = assemble_heat(heat)
-    rise = heat_system.vertex_values(steady_state(heat_system).rise)
-    system, u = linear_solve_with_temperature(model, rise, [ALPHA])
-    uz = u[system.basis.nodal_dofs[1]]
-    r, z = system.mesh.p
-    mid = np.isclose(z, 0.0)
-    c = np.linalg.lstsq(np.column_stack([np.ones(mid.sum()), r[mid] ** 2]), uz[mid], rcond=None)[0]
-    rim = uz[mid & np.isclose(r, PLATE_B)][0] - uz[mid & np.isclose(r, PLATE_A)][0]
-    return -2.0 * c[1], rim, largest_stress(vertex_thermal_stress(system, u, rise, [ALPHA]))
+    """(curvature from the mid-plane u_z, axial offset of the rim against the bore, largest stress)."""
+    return plate_coning(order, cells, rise_difference=dT)
 
 
 def test_thermal_coning_of_a_free_plate():

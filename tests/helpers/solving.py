@@ -8,6 +8,7 @@ from dataclasses import dataclass
 
 import numpy as np
 import pytest
+from scipy.sparse.linalg import spsolve
 
 from clutchfe import fem
 from clutchfe.comparison import Comparison, HandCapacity, compare, hand_of
@@ -116,3 +117,18 @@ def assert_hertz_pressure(interface, P: float, Es: float, R: float, spacing: flo
     assert np.sqrt(-icpt / slope) == pytest.approx(a, rel=1e-2)
     assert abs(interface.r[interface.in_contact].max() - a) <= spacing
     return a, p0
+
+
+def harmonic_compliance_by_spsolve(hs, G3, pins, n):
+    """The contact compliance of harmonic n the plain way: one sparse solve (scipy's spsolve) per contact
+    force on the harmonic's own matrix, its axis tie applied and the held and pinned dofs removed: the
+    reference the shared elimination is checked against."""
+    T = hs.axis_tie(n)
+    K = (T.T @ hs.matrix(n) @ T).tocsr()
+    keep = np.ones(hs.basis.N, dtype=bool)
+    keep[hs.held(n)] = False
+    keep[pins] = False
+    inner = np.flatnonzero(keep)
+    Gi = (T.T @ G3).tocsc()[inner]
+    return Gi.T @ spsolve(K[inner][:, inner].tocsc(), Gi.toarray())
+

@@ -12,7 +12,7 @@ from matplotlib.tri import Triangulation
 from rich.markup import escape
 from rich.table import Table
 
-from ...output.plots import PRESSURE_LABEL, RADIUS_LABEL, new_figure
+from ...output.plots import RADIUS_LABEL, hand_curves_over, new_figure
 from .analysis import THERMAL_CSV_COLUMNS, EngagementRun, slip_phase, thermal_rows
 
 FILES = ("thermal.csv", "thermal_series.pvd", "temperature_hottest.png", "pressure_hot.png",
@@ -106,15 +106,7 @@ def hot_pressure_picture(path: Path, run: EngagementRun, hand, count: int):
             ax.plot(itf.r[order], itf.pressure[order], color="tab:red" if k == run.worst else colour,
                     linewidth=1.2, label=(f"t = {step.time:.3g} s, xi = {run.results[k]['capacity_position']:.3f}"
                                           f"{' (least torque)' if k == run.worst else ''} [MPa]" if s == 0 else None))
-    curves = hand.pressure_curves()
-    ax.plot(curves["r_mm"], curves["uniform_pressure_MPa"], "k--", linewidth=1.0, label="uniform pressure [MPa]")
-    ax.plot(curves["r_mm"], curves["uniform_wear_MPa"], "k:", linewidth=1.6, label="uniform wear [MPa]")
-    ax.set_xlabel(RADIUS_LABEL)
-    ax.set_ylabel(PRESSURE_LABEL)
-    ax.set_ylim(bottom=0.0)
-    ax.grid(True, linewidth=0.4, alpha=0.6)
-    ax.legend(fontsize="x-small", loc="best")
-    ax.set_title("contact pressure during the engagement (last engagement)", fontsize="medium")
+    hand_curves_over(ax, hand, "contact pressure during the engagement (last engagement)")
     fig.savefig(path, dpi=130)
     return fig
 

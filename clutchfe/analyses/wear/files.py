@@ -8,7 +8,7 @@ import numpy as np
 from rich.markup import escape
 from rich.table import Table
 
-from ...output.plots import PRESSURE_LABEL, RADIUS_LABEL, new_figure
+from ...output.plots import RADIUS_LABEL, hand_curves_over, new_figure
 from .analysis import PROFILE_CSV_COLUMNS, STAGE_FRACTIONS, WEAR_CSV_COLUMNS, WearRun, wear_rows
 
 FILES = ("wear.csv", "worn_profile.csv", "wear_path.png", "wear_pressure.png", "worn_profile.png")
@@ -84,15 +84,7 @@ def stage_pressure_plot(path: Path, run: WearRun, hand, stages: list[int]):
             order = np.argsort(itf.r)
             ax.plot(itf.r[order], itf.pressure[order], color=colour if k != stages[-1] else "tab:red",
                     linewidth=1.2, label=(f"step {k}: V = {state.wear_volume_mm3:.4g} mm³ [MPa]" if s == 0 else None))
-    curves = hand.pressure_curves()
-    ax.plot(curves["r_mm"], curves["uniform_pressure_MPa"], "k--", linewidth=1.0, label="uniform pressure (new) [MPa]")
-    ax.plot(curves["r_mm"], curves["uniform_wear_MPa"], "k:", linewidth=1.6, label="uniform wear (worn in) [MPa]")
-    ax.set_xlabel(RADIUS_LABEL)
-    ax.set_ylabel(PRESSURE_LABEL)
-    ax.set_ylim(bottom=0.0)
-    ax.grid(True, linewidth=0.4, alpha=0.6)
-    ax.legend(fontsize="x-small", loc="best")
-    ax.set_title("contact pressure from new to worn in")
+    hand_curves_over(ax, hand, "contact pressure from new to worn in", "uniform pressure (new)", "uniform wear (worn in)")
     fig.savefig(path, dpi=130)
     return fig
 
