@@ -209,6 +209,10 @@ SUMMARY_KEYS: tuple[SummaryKey, ...] = (
         ("coupling_residual_max", "", "largest final residual of a time step: the last change of the interface "
                                          "pressures over their peak"),
         ("heat_factorisations", "", "distinct heat-step matrices factorised (each once)"),
+        ("coupling_fallback_steps", "", "time steps whose contact front cycled (a node at the edge of the contact "
+                                        "closing and opening again), solved by the staggered iteration"),
+        ("peak_temperature_step_jump_K", "K", "largest departure of a slip step's peak temperature from the mean of "
+                                              "its neighbours: step-to-step jumps at a cycling front"),
         ("conservative_hand_method_cold", "", '"both", "uniform wear" or "neither": which hand formula predicts '
                                               "no more torque than the cold FE"),
         ("conservative_hand_method_hot", "", "the same at the worst instant of the engagement"),

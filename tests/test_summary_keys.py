@@ -22,7 +22,7 @@ from clutchfe.summary_keys import (BY_KEY, MARKERS, OPTIONAL_STAGES, STAGES, SUM
 from tests.helpers.data import ROOT, SMALL_PLATE, with_tables
 
 # the unit each name ending stands for (longest ending first: _mm3 before _mm, _Nm before _N)
-NAME_UNITS = (("_mm3_per_N_m", "mm³/(N·m)"), ("_mm3", "mm³"), ("_mm", "mm"), ("_C", "°C"), ("_J", "J"), ("_s", "s"), ("_Nm", "N·m"), ("_N", "N"),
+NAME_UNITS = (("_mm3_per_N_m", "mm³/(N·m)"), ("_mm3", "mm³"), ("_mm", "mm"), ("_C", "°C"), ("_K", "K"), ("_J", "J"), ("_s", "s"), ("_Nm", "N·m"), ("_N", "N"),
               ("_MPa", "MPa"), ("_deg", "deg"), ("_percent", "%"), ("_rad", "rad"), ("_seconds", "s"))
 
 CASES = {

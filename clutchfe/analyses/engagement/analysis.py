@@ -172,6 +172,8 @@ def engagement_summary(run: EngagementRun, case) -> dict:
         "coupling_iterations_max": max(s.coupling_iterations for s in steps),
         "coupling_residual_max": max(s.coupling_residual for s in steps),
         "heat_factorisations": h.heat_factorisations,
+        "coupling_fallback_steps": sum(s.coupling == "fixed-point" for s in steps),
+        "peak_temperature_step_jump_K": _largest_jump(steps, slip_phase(steps, run.setup.duty)),
         "conservative_hand_method_cold": conservative_methods(cold["capacity_position"]),
         "conservative_hand_method_hot": conservative_methods(worst["capacity_position"]),
         "conservative_hand_method_hot_end_of_slip": conservative_methods(end["capacity_position"]),
@@ -201,8 +203,24 @@ def engagement_summary(run: EngagementRun, case) -> dict:
         failed.append("energy balance (hot engagement)")
         warnings.append(f"WARNING: THE HEAT ACCOUNT OF THE ENGAGEMENT DOES NOT CLOSE: balance error "
                         f"{100 * energy.balance_error:.2g} % (> 1 %): more time steps are needed.")
+    if out["coupling_fallback_steps"]:
+        warnings.append(
+            f"{out['coupling_fallback_steps']} of {len(steps)} time steps had a cycling contact front (a node at the "
+            "edge of the contact closes, conducts, and opens again), solved by the staggered iteration; the peak "
+            f"temperature jumps by up to {out['peak_temperature_step_jump_K']:.3g} K from one step to the next "
+            "there: compare a run with more engagement.steps_per_engagement before relying on the peak temperature.")
     out["engagement_warnings"], out["engagement_failed"] = warnings, failed
     return out
+
+
+def _largest_jump(steps, slip: list[int]) -> float:
+    """K: the largest departure of a slip step's peak rise from the mean of its two neighbours (both in the
+    same slip): a smooth history has none beyond the step's curvature, a node flipping at the front has."""
+    inside = set(slip)
+    jumps = [abs(steps[k].peak_rise - 0.5 * (steps[k - 1].peak_rise + steps[k + 1].peak_rise))
+             for k in slip if k - 1 in inside and k + 1 in inside
+             and steps[k - 1].engagement == steps[k].engagement == steps[k + 1].engagement]
+    return float(max(jumps, default=0.0))
 
 
 def _engagement_start(steps, k: int) -> float:
