@@ -45,7 +45,7 @@ def test_every_case_passes_with_a_named_source(suite):
     for r in rows:
         assert len(r.source) > 5 and r.source != "—", r
         assert "[" in r.quantity and r.quantity.endswith("]"), r.quantity          # unit in every label
-    assert len(rows) >= 45          # 25 elastic and contact rows, 20 thermal (docs/verification.md)
+    assert len(rows) >= 61          # 25 elastic and contact rows, 20 thermal, 16 speed (docs/verification.md)
 
 
 @pytest.mark.slow

@@ -20,6 +20,7 @@ from .store import VerificationRows, json_row, store_table
 from .contact import hertz_sphere_on_flat, rigid_flat_punch
 from .limits import linear_gap, load_linearity, thin_lining_limit
 from .solids import lame_cylinder
+from .speed import mean_hoop_and_burst, omega_squared_law, rotating_disc, thin_ring
 from .thermal import (energy_conservation, free_expansion, hollow_cylinder_log_law, plane_slab, semi_infinite_flux,
                       thermal_coning)
 from .tilted import harmonic_vs_solid, winkler_small_tilt
@@ -49,6 +50,11 @@ CASES: list[VerificationCase] = [
     VerificationCase("energy of a slip transient with convection", energy_conservation),
     VerificationCase("free thermal expansion under a uniform rise", free_expansion),
     VerificationCase("thermal coning of a free plate (linear through-thickness rise)", thermal_coning),
+    # speed (fem/centrifugal.py): together 0.08 s CPU (measured, the four cases in one process, imports apart)
+    VerificationCase("rotating annular disc, plane stress, free edges", rotating_disc),
+    VerificationCase("thin rotating ring", thin_ring),
+    VerificationCase("mean hoop stress of a free spinning body and its burst speed", mean_hoop_and_burst),
+    VerificationCase("stresses proportional to ω² (linearity in the load)", omega_squared_law),
 ]
 
 _memo: dict[tuple, tuple] = {}

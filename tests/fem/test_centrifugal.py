@@ -8,42 +8,18 @@ import math
 import numpy as np
 import pytest
 
-from clutchfe.fem import FaceLoad, SpringSupport, linear_solve, vertex_stress
-from clutchfe.fem.centrifugal import (STEEL_DENSITY, body_stresses, burst_speed, centrifugal_load,
+from clutchfe.fem import FaceLoad, linear_solve, vertex_stress
+from clutchfe.fem.centrifugal import (body_stresses, burst_speed, centrifugal_load,
                                       hoop_and_von_mises, linear_solve_at_speed, mean_hoop_stress,
                                       rad_per_s, tonne_per_mm3)
 from clutchfe.fem.assembly import assemble
+# the models and the closed form are the verify suite's (clutchfe/verification/speed.py), one copy: steel,
+# the thin annular disc a = 20, b = 100 mm, 1 mm thick (half modelled above its mid-plane, 80 × 1 cells)
+# and the thin ring R = 100 mm, 1 × 1 mm section (4 × 4 cells)
+from clutchfe.verification.speed import (DISC_A, DISC_B, DISC_T, E, NU, OMEGA, RHO, RING_CELLS, RING_R, RING_W,
+                                         disc, ring, timoshenko_disc)
 
 from tests.helpers.models import Section
-
-E, NU = 210000.0, 0.3
-RHO = STEEL_DENSITY
-OMEGA = rad_per_s(10000.0)
-
-# thin annular disc: bore 20 mm, rim 100 mm, 1 mm thick; the half 0 <= z <= 0.5 is modelled with
-# the mid-plane z = 0 held axially (a symmetry plane, free radially), 80 x 1 cells of 1 x 0.5 mm,
-# each split into two P2 triangles
-DISC_A, DISC_B, DISC_T, DISC_CELLS = 20.0, 100.0, 1.0, 80
-
-
-def disc(cells=DISC_CELLS, order=2):
-    s = Section().add_block("disc", np.linspace(DISC_A, DISC_B, cells + 1), np.linspace(0.0, DISC_T / 2, 2))
-    # the mid-plane support removes the axial rigid motion and nothing else: the load has no
-    # axial part and the symmetric half of a free disc has u_z = 0 there
-    mid_plane = SpringSupport("disc_bottom", axial_stiffness=None, radial_stiffness=0.0)
-    return s, s.model([E], [NU], [False], supports=[mid_plane], element_order=order)
-
-
-def timoshenko_disc(r, a, b, omega, rho=RHO, nu=NU, E=E):
-    """Rotating annular disc of uniform thickness, plane stress, both edges free:
-    σ_r = (3+ν)/8 ρω² (b² + a² − a²b²/r² − r²),
-    σ_θ = (3+ν)/8 ρω² (b² + a² + a²b²/r² − (1+3ν)/(3+ν) r²),
-    u_r = r (σ_θ − ν σ_r) / E  (Timoshenko & Goodier, Theory of Elasticity, 3rd ed. 1970,
-    §32 rotating disks; section number from memory, the formula is checked below)."""
-    k = (3 + nu) / 8 * rho * omega**2
-    sr = k * (b**2 + a**2 - a**2 * b**2 / r**2 - r**2)
-    st = k * (b**2 + a**2 + a**2 * b**2 / r**2 - (1 + 3 * nu) / (3 + nu) * r**2)
-    return sr, st, r * (st - nu * sr) / E
 
 
 def test_the_disc_closed_form_is_a_solution():
@@ -113,17 +89,6 @@ def test_disc_mean_hoop_stress_is_the_half_disc_balance(spinning_disc):
     assert mean == pytest.approx(RHO * OMEGA**2 * (a * a + a * b + b * b) / 3, rel=1e-9)
     s, coarse = disc(cells=5)
     assert mean_hoop_stress(*linear_solve_at_speed(coarse, [RHO], OMEGA), 0)[0] == pytest.approx(mean, rel=1e-9)
-
-
-# thin ring: mean radius 100 mm, 1 x 1 mm section (w/R = 0.01), 4 x 4 cells; a free body (axially
-# free, pinned at one node by the solver): no support at all
-RING_R, RING_W, RING_CELLS = 100.0, 1.0, 4
-
-
-def ring():
-    a, b = RING_R - RING_W / 2, RING_R + RING_W / 2
-    s = Section().add_block("ring", np.linspace(a, b, RING_CELLS + 1), np.linspace(0.0, RING_W, RING_CELLS + 1))
-    return s, s.model([E], [NU], [True])
 
 
 def test_thin_rotating_ring():
