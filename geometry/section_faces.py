@@ -259,8 +259,9 @@ class Faces:
                 inner.append(key)
         if not corners and not inner:
             span = [self.points[p][0] for k in keys for p in k[1:]]
-            self.problems.append(f"section load face {name!r}: the ring radius {radius:g} mm is not on it (it spans "
-                                 f"r = {min(span):.4g} … {max(span):.4g} mm)")
+            self.problems.append(f"load.ring_radius = {radius:g}: the ring radius {radius:g} mm is not on the section "
+                                 f"load face {name!r} (it spans r = {min(span):.4g} … {max(span):.4g} mm); allowed: a "
+                                 "radius on that face")
             return
         if len(corners) + len(inner) > 1:
             self.problems.append(f"section load face {name!r}: crosses r = {radius:g} mm at "

@@ -589,7 +589,8 @@ def test_a_ring_load_puts_a_corner_on_the_load_face_or_says_where_the_face_is():
     nodes = np.unique(mesh.faces["cone_back_face"])
     assert np.abs(mesh.points[nodes, 0] - 40.0).min() == 0.0
     (problem,) = _problems(_cone_cup(), ring_radius=70.0)
-    assert "ring radius 70 mm is not on it (it spans r = 16 … 66.89 mm)" in problem
+    assert "load.ring_radius = 70: the ring radius 70 mm is not on the section load face" in problem
+    assert "(it spans r = 16 … 66.89 mm)" in problem
 
 
 def test_two_outlines_on_one_layer_need_a_point_inside_each(tmp_path, pressure_plate):
