@@ -41,6 +41,7 @@ SupportTable, MisalignmentTable = _TABLE_CLASSES["support"], _TABLE_CLASSES["mis
 RequirementTable, MeshTable = _TABLE_CLASSES["requirement"], _TABLE_CLASSES["mesh"]
 WearTable, VerificationTable = _TABLE_CLASSES["wear"], _TABLE_CLASSES["verification"]
 EngagementTable, CoolingTable = _TABLE_CLASSES["engagement"], _TABLE_CLASSES["cooling"]
+SpeedTable = _TABLE_CLASSES["speed"]
 
 
 @dataclass(frozen=True)
@@ -69,6 +70,8 @@ class Case:
     # [cooling] is always filled in (defaults), used only by the hot engagement
     engagement: EngagementTable | None
     cooling: CoolingTable
+    # the speed analysis (centrifugal load at the running speed): None when the case has no [speed] table
+    speed: SpeedTable | None
     input_sha256: str = ""
     source: str = ""
     warnings: tuple = ()
@@ -87,7 +90,7 @@ class Case:
         out = {"kind": self.kind, "name": self.name}
         for table in _TABLE_CLASSES:
             obj = getattr(self, table)
-            if obj is None:         # an analysis table the case does not give ([engagement])
+            if obj is None:         # an analysis table the case does not give ([engagement], [speed])
                 continue
             for key in SCHEMA[table]:
                 value = getattr(obj, key)
@@ -200,7 +203,8 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
             spec, spec_sha, drawing_problems = section_file_of(
                 data, source, values.get("mesh.lining_layers", 4),
                 (values.get("lining.youngs_modulus"), values.get("lining.poissons_ratio")),
-                lining_thermal={k: values.get(f"lining.{k}") for k in THERMAL_KEYS})
+                lining_thermal={k: values.get(f"lining.{k}") for k in THERMAL_KEYS},
+                lining_tensile=values.get("lining.tensile_strength"))
             problems += drawing_problems
             # the drawing replaces the parametric parts: their defaults would describe parts not drawn
             for full in [k for k in values if k.partition(".")[0] in DRAWN_TABLES or k in DRAWN_KEYS]:

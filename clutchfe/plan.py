@@ -34,6 +34,7 @@ if TYPE_CHECKING:       # the types only; the stages themselves where they run (
     from .analyses.tilt import TiltResult
     from .analyses.wear import WearRun
     from .analyses.engagement import EngagementRun
+    from .analyses.speed import SpeedResult
     from .solve import SolvedCase, SolveService
     from .verification import TableOrigin
 
@@ -48,6 +49,7 @@ class CaseResult:
     tilt: TiltResult | None = None      # the case has an axis tilt or a radial offset
     wear: WearRun | None = None         # the case has a [wear] table
     engagement: EngagementRun | None = None     # the case has an [engagement] table (hot engagement)
+    speed: SpeedResult | None = None            # the case has a [speed] table (running speed)
 
     @property
     def case(self) -> Case:
@@ -87,6 +89,10 @@ def wants_wear(case: Case) -> bool:
 
 def wants_engagement(case: Case) -> bool:
     return "engagement" in case.tables_given
+
+
+def wants_speed(case: Case) -> bool:
+    return "speed" in case.tables_given
 
 
 def analyse(case: Case, service: SolveService | None = None, fields: bool = True, progress=None) -> CaseResult:
@@ -142,7 +148,12 @@ def analyse(case: Case, service: SolveService | None = None, fields: bool = True
         step("hot engagement (time steps)")
         bar = getattr(progress, "time_steps", None)
         engagement = engagement_of_case(solved, hand, progress=bar("time steps of the engagement") if bar else None)
-    return CaseResult(solved, hand, comparison, tilt, wear, engagement)
+    speed = None
+    if wants_speed(case):
+        from .analyses.speed import speed_of_case       # start-up (module docstring)
+        step("at the running speed")
+        speed = speed_of_case(solved, hand)
+    return CaseResult(solved, hand, comparison, tilt, wear, engagement, speed)
 
 
 def gather_evidence(result: CaseResult, service: SolveService, progress=None) -> Evidence:
@@ -267,7 +278,7 @@ def run_case(case: Case, folder: Path, console, service: SolveService | None = N
 
     service = service if service is not None else SolveService()
     with Progress(transient=True, console=console) as progress:
-        step = _Steps(progress, total=8 + wants_engagement(case), listener=on_step)
+        step = _Steps(progress, total=8 + wants_engagement(case) + wants_speed(case), listener=on_step)
         service.prepare(case)
         result = analyse(case, service, progress=step)
         evidence = gather_evidence(result, service, progress=step)
@@ -287,6 +298,9 @@ def run_case(case: Case, folder: Path, console, service: SolveService | None = N
     if result.engagement is not None:
         from .analyses.engagement import engagement_table       # start-up (module docstring)
         extra_tables.append(engagement_table(summary))
+    if result.speed is not None:
+        from .analyses.speed import speed_table     # start-up (module docstring)
+        extra_tables.append(speed_table(summary))
     print_table(console, case, summary, folder, extra_tables=extra_tables)
     return summary
 
@@ -303,6 +317,9 @@ def report_sections(result: CaseResult, summary: dict, folder: Path) -> dict:
     if result.engagement is not None:
         from .analyses.engagement.report import engagement_section      # start-up (module docstring)
         sections["engagement"] = engagement_section(summary, folder, summary.get("engagement_warnings", []))
+    if result.speed is not None:
+        from .analyses.speed.report import speed_section        # start-up (module docstring)
+        sections["speed"] = speed_section(summary, folder, summary.get("speed_warnings", []))
     return sections
 
 
@@ -320,6 +337,9 @@ def write_case_files(result: CaseResult, folder: Path) -> None:
     if result.engagement is not None:
         from .analyses.engagement import write_engagement_files     # start-up (module docstring)
         write_engagement_files(result.engagement, result.case, result.hand, solved.mesh, folder)
+    if result.speed is not None:
+        from .analyses.speed import write_speed_files       # start-up (module docstring)
+        write_speed_files(result.speed, result.case, result.hand, solved.mesh, solved.fe, folder)
 
 
 def _run_verdict(summary: dict, result: CaseResult, evidence: Evidence | None) -> None:
@@ -339,6 +359,9 @@ def _run_verdict(summary: dict, result: CaseResult, evidence: Evidence | None) -
         hot = [w for w in summary.get("engagement_warnings", []) if w.startswith("WARNING")]
         verdict += [f"Hot engagement: {w}" for w in hot]
         failed += [name for name in summary.get("engagement_failed", []) if name not in failed]
+    if result.speed is not None:
+        verdict += [f"At speed: {w}" for w in summary.get("speed_warnings", []) if w.startswith("WARNING")]
+        failed += [name for name in summary.get("speed_failed", []) if name not in failed]
     study = evidence.mesh_study if evidence is not None else {}
     if study and not study.get("skipped") and not study.get("converged", True):
         failed.append("mesh convergence")
@@ -402,6 +425,11 @@ def summary_of(result: CaseResult, evidence: Evidence | None = None) -> dict:
         from .analyses.engagement import engagement_summary     # start-up (module docstring)
         keys = engagement_summary(result.engagement, case)
         summary["warnings"] += keys["engagement_warnings"]
+        summary.update(keys)
+    if result.speed is not None:
+        from .analyses.speed import speed_summary       # start-up (module docstring)
+        keys = speed_summary(result.speed, case)
+        summary["warnings"] += keys["speed_warnings"]
         summary.update(keys)
     summary["versions"] = versions()
     summary["caution"] = CAUTION

@@ -21,6 +21,12 @@ THERMAL_KEYS = ("thermal_conductivity", "density", "specific_heat", "expansion_c
 STEEL_THERMAL = (50.0, 7850.0, 460.0, 12e-6)        # carbon steel, common practice
 CAST_IRON_THERMAL = (50.0, 7200.0, 500.0, 11e-6)    # grey cast iron, from memory (k 45–55 by grade)
 LINING_THERMAL = (0.8, 2000.0, 1200.0, 20e-6)      # moulded organic facing, from memory (k 0.5–1, α 15–30e-6)
+# yield strength (a cast iron's 0.1 % proof stress) and tensile strength, MPa; read by the speed analysis
+STRENGTH_KEYS = ("yield_strength", "tensile_strength")
+STEEL_STRENGTH = (355.0, 470.0)         # structural steel S355, EN 10025-2 minima for 3–100 mm (from memory)
+# grey cast iron EN-GJL-250 (EN 1561: Rm ≥ 250 MPa; its 0.1 % proof stress ~165, from memory)
+CAST_IRON_STRENGTH = (165.0, 250.0)
+LINING_TENSILE = 30.0                   # moulded organic facing, from memory (20–40 MPa)
 
 
 @dataclass(frozen=True)
@@ -118,12 +124,27 @@ LINING_THERMAL_RANGES = {
                                      "from memory"),
 }
 
+BODY_STRENGTH_RANGES = {
+    "yield_strength": _closed(20.0, 2500.0, "from cast magnesium and aluminium alloys and grey iron's 0.1 % proof "
+                              "stress (~50–200 MPa) over structural steels 235–460 and quenched-and-tempered "
+                              "steels 600–1000 to maraging steel ~2000 (from memory); strengths are in MPa, so "
+                              "0.355 means GPa"),
+    "tensile_strength": _closed(50.0, 3000.0, "from grey cast iron EN-GJL-150 (150 MPa) and cast light alloys over "
+                                "structural steels 360–680 and quenched-and-tempered steels 800–1200 to maraging "
+                                "steel ~2100 (from memory); strengths are in MPa, so 0.51 means GPa"),
+}
+STRENGTH_UNITS = {"yield_strength": "MPa", "tensile_strength": "MPa"}
+STRENGTH_MEANINGS = {"yield_strength": "yield strength (for grey cast iron its 0.1 % proof stress), compared with "
+                                       "the von Mises stress at speed",
+                     "tensile_strength": "tensile strength, with the mean hoop stress the burst speed"}
+LINING_TENSILE_RANGE = _closed(1.0, 500.0, "from wet paper (a few MPa) over moulded organic facings 20–40 to "
+                               "sintered bronze and iron (~100–300) and carbon–carbon (up to ~300), from memory")
 FILM_RANGE = _closed(0.0, 20000.0, "0 = adiabatic (a bound); still air 2–25, forced and rotating air 25–250, oil "
                      "spray and jets 500–20 000 W/(m²·K): the textbook ranges of convection coefficients, from "
                      "memory")
 # tables whose presence asks for an analysis: their keys are defaulted (and their table_required keys
 # required) only when the case gives the table; without it the case's attribute is None
-ANALYSIS_TABLES = ("engagement",)
+ANALYSIS_TABLES = ("engagement", "speed")
 
 CONE = ("cone",)
 PLATE = ("plate",)
@@ -131,19 +152,36 @@ PLATE = ("plate",)
 
 def _thermal(what: str, defaults: tuple, kinds: tuple, ranges: dict) -> dict:
     """The four thermal keys of one material (only the hot engagement, [engagement], uses them)."""
-    return {key: Key(THERMAL_UNITS[key], f"{what}: {THERMAL_MEANINGS[key]} (used by the hot engagement; the "
-                     "default is the default material's: with your own youngs_modulus or poissons_ratio and "
-                     "an [engagement] table, give all four)", default=value, kinds=kinds, **ranges[key])
+    return {key: Key(THERMAL_UNITS[key], f"{what}: {THERMAL_MEANINGS[key]} (used by the hot engagement"
+                     f"{SPEED_USES_DENSITY if key == 'density' else ''}; the default is the default material's: "
+                     "with your own youngs_modulus or poissons_ratio and an [engagement] table, give all four"
+                     f"{SPEED_GIVES_DENSITY if key == 'density' else ''})",
+                     default=value, kinds=kinds, **ranges[key])
             for key, value in zip(THERMAL_KEYS, defaults)}
 
 
-def _material(what: str, modulus: float, poisson: float, kinds: tuple, thermal: tuple) -> dict:
-    """Young's modulus, Poisson's ratio and the thermal properties of one body: the same keys in every
-    body table."""
+# the speed analysis's centrifugal load is ρ ω² r: density is one of its material keys too
+SPEED_USES_DENSITY = " and by the speed analysis's centrifugal load"
+SPEED_GIVES_DENSITY = ", with a [speed] table density and the strengths"
+
+
+def _strength(what: str, key: str, default: float, kinds: tuple, rng: dict,
+              keys: str = "density, yield_strength and tensile_strength") -> Key:
+    """One strength key of one material (only the speed analysis, [speed], uses them)."""
+    return Key(STRENGTH_UNITS[key], f"{what}: {STRENGTH_MEANINGS[key]} (used by the speed analysis; the default is "
+               "the default material's: with your own youngs_modulus or poissons_ratio and a [speed] table, give "
+               f"{keys})", default=default, kinds=kinds, **rng)
+
+
+def _material(what: str, modulus: float, poisson: float, kinds: tuple, thermal: tuple, strength: tuple) -> dict:
+    """Young's modulus, Poisson's ratio, the thermal properties and the strengths of one body: the same keys
+    in every body table."""
     return {"youngs_modulus": Key("MPa", what, default=modulus, kinds=kinds, limit_range=(0.0, None),
                                   **BODY_MODULUS_RANGE),
             "poissons_ratio": Key("", what, default=poisson, kinds=kinds, **BODY_POISSON_RANGE),
-            **_thermal(what, thermal, kinds, BODY_THERMAL_RANGES)}
+            **_thermal(what, thermal, kinds, BODY_THERMAL_RANGES),
+            **{key: _strength(what, key, value, kinds, BODY_STRENGTH_RANGES[key])
+               for key, value in zip(STRENGTH_KEYS, strength)}}
 
 SCHEMA: dict[str, dict[str, Key]] = {
     "": {
@@ -198,6 +236,8 @@ SCHEMA: dict[str, dict[str, Key]] = {
                               why="porous and fibrous linings 0–0.35 (from memory); towards 0.5 a material is "
                                   "rubber-like, not a lining"),
         **_thermal("lining", LINING_THERMAL, ("cone", "plate"), LINING_THERMAL_RANGES),
+        "tensile_strength": _strength("lining", "tensile_strength", LINING_TENSILE, ("cone", "plate"),
+                                      LINING_TENSILE_RANGE, keys="density and tensile_strength"),
         "bonded_to": Key("", "the body carrying the lining: cone clutch \"cone\" (inner cone) or \"cup\"; "
                          "plate clutch \"disc\" (both disc faces) or \"plates\" (the faces of the plates)", str,
                          default=lambda c: "cone" if c["kind"] == "cone" else "disc",
@@ -217,7 +257,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
                                   why="linings are rated 0.1–3.5 MPa, sintered up to ~10 (from memory)"),
     },
     "cone": {
-        **_material("inner (male) cone material", STEEL_E, STEEL_NU, CONE, STEEL_THERMAL),
+        **_material("inner (male) cone material", STEEL_E, STEEL_NU, CONE, STEEL_THERMAL, STEEL_STRENGTH),
         "rim_thickness": Key("mm", "conical rim under the lining, measured normal to the face",
                              default=lambda c: _r(0.1 * _r2(c)), **THICKNESS_RANGE, kinds=CONE),
         "web_thickness": Key("mm", "axial thickness of the web joining rim and hub (at the wide end)",
@@ -230,7 +270,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
                           default=lambda c: _r(0.6 * _cone_height(c) + 0.12 * _r2(c)), **LENGTH_RANGE, kinds=CONE),
     },
     "cup": {
-        **_material("outer cup material", CAST_IRON_E, CAST_IRON_NU, CONE, CAST_IRON_THERMAL),
+        **_material("outer cup material", CAST_IRON_E, CAST_IRON_NU, CONE, CAST_IRON_THERMAL, CAST_IRON_STRENGTH),
         "wall_thickness": Key("mm", "conical wall of the cup, measured normal to the face",
                               default=lambda c: _r(0.12 * _r2(c)), **THICKNESS_RANGE, kinds=CONE),
         "face_overrun": Key("mm", "axial length the cup face runs on past the narrow end of the lining "
@@ -246,7 +286,8 @@ SCHEMA: dict[str, dict[str, Key]] = {
                           default=lambda c: _r(0.4 * _r1(c)), **LENGTH_RANGE, kinds=CONE),
     },
     "pressure_plate": {
-        **_material("pressure plate material", CAST_IRON_E, CAST_IRON_NU, PLATE, CAST_IRON_THERMAL),
+        **_material("pressure plate material", CAST_IRON_E, CAST_IRON_NU, PLATE, CAST_IRON_THERMAL,
+                    CAST_IRON_STRENGTH),
         "thickness": Key("mm", "axial thickness", default=lambda c: _r(0.12 * _r2(c)), **THICKNESS_RANGE, kinds=PLATE),
         "inner_radius": Key("mm", "inner radius", default=lambda c: _r(_r1(c) - 0.05 * _w(c)), **PART_RADIUS_RANGE,
                             kinds=PLATE),
@@ -254,7 +295,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
                             kinds=PLATE),
     },
     "disc": {
-        **_material("friction disc core material", STEEL_E, STEEL_NU, PLATE, STEEL_THERMAL),
+        **_material("friction disc core material", STEEL_E, STEEL_NU, PLATE, STEEL_THERMAL, STEEL_STRENGTH),
         "core_thickness": Key("mm", "axial thickness of the steel core", default=lambda c: _r(0.025 * _r2(c)),
                               **THICKNESS_RANGE, kinds=PLATE),
         "core_inner_radius": Key("mm", "inner radius of the core (towards the splined hub)",
@@ -264,7 +305,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
     },
     "counter_plate": {
         **_material("counter plate (flywheel side, or the end plate of a pack)", CAST_IRON_E, CAST_IRON_NU,
-                    PLATE, CAST_IRON_THERMAL),
+                    PLATE, CAST_IRON_THERMAL, CAST_IRON_STRENGTH),
         "thickness": Key("mm", "axial thickness", default=lambda c: _r(0.15 * _r2(c)), **THICKNESS_RANGE, kinds=PLATE),
         "inner_radius": Key("mm", "inner radius (bore)", default=lambda c: _r(0.3 * _r1(c)), **PART_RADIUS_RANGE,
                             kinds=PLATE),
@@ -272,7 +313,8 @@ SCHEMA: dict[str, dict[str, Key]] = {
                             kinds=PLATE),
     },
     "separator_plate": {
-        **_material("separator plates between the discs of a pack", STEEL_E, STEEL_NU, PLATE, STEEL_THERMAL),
+        **_material("separator plates between the discs of a pack", STEEL_E, STEEL_NU, PLATE, STEEL_THERMAL,
+                    STEEL_STRENGTH),
         "thickness": Key("mm", "axial thickness", default=lambda c: _r(0.025 * _r2(c)), **THICKNESS_RANGE, kinds=PLATE),
         "inner_radius": Key("mm", "inner radius", default=lambda c: _r(_r1(c) - 0.05 * _w(c)), **PART_RADIUS_RANGE,
                             kinds=PLATE),
@@ -515,6 +557,15 @@ SCHEMA: dict[str, dict[str, Key]] = {
                                    **_closed(-60.0, 400.0, "from an arctic cold start (−40 °C) to a clutch still "
                                              "hot from earlier duty (organic facings fade past ~250–300 °C, from "
                                              "memory); it is checked against the ambient")),
+    },
+    "speed": {
+        # the table asks for the speed analysis: the centrifugal body force ρ ω² r in every body, the contact
+        # pressure and the stresses at speed against the strengths, a burst-speed margin
+        "running_speed": Key("rpm", "speed the whole clutch turns at, engaged (the table asks for the speed "
+                             "analysis: centrifugal load, contact pressure and stresses at speed, burst margin)",
+                             table_required=True, low=0.0, high=30000.0, high_inclusive=True,
+                             why="up to the speeds of high-speed machinery, 30 000 rpm (common practice); the rim "
+                                 "speed is checked with the radii"),
     },
     "verification": {
         "mesh_study": Key("", "solve on three meshes (refinement ratio below) and report observed order, "

@@ -48,7 +48,8 @@ from typing import Any
 
 from .geometry.section_spec import (ROLES, UNITS, Axis, BodySpec, FaceSpec, FrictionSpec, RegionSpec, Select,
                                     SectionFileSpec, spec_problems)
-from .schema import BODY_MODULUS_RANGE, BODY_POISSON_RANGE, BODY_THERMAL_RANGES, THERMAL_KEYS, THERMAL_UNITS
+from .schema import (BODY_MODULUS_RANGE, BODY_POISSON_RANGE, BODY_STRENGTH_RANGES, BODY_THERMAL_RANGES,
+                     STRENGTH_KEYS, STRENGTH_UNITS, THERMAL_KEYS, THERMAL_UNITS)
 from .toml_input import shown
 
 TABLE = "section_file"
@@ -77,7 +78,7 @@ TOP_KEYS = {
 }
 SELECT_KEYS = ("layer", "named", "curve_index", "box", "through")
 REGION_KEYS = ("body", "layer", "label", "index", "inside", "lining", "youngs_modulus", "poissons_ratio",
-               *THERMAL_KEYS)
+               *THERMAL_KEYS, *STRENGTH_KEYS)
 FRICTION_KEYS = ("body_a", "body_b", "lining_body", *SELECT_KEYS, *(f"mate_{k}" for k in SELECT_KEYS))
 FACE_KEYS = (*SELECT_KEYS, "body", "face_name")
 DEFAULT_FACE_NAMES = {"load": "load_face", "axial_support": "axial_support_face",
@@ -160,7 +161,7 @@ def _select(read: _Reader, where: str, entry: dict, prefix: str = "", body: str 
 
 
 def _region(read: _Reader, name: str, entry: dict, lining_layers: int, lining_material, lining_thermal: dict,
-            engagement: bool) -> RegionSpec | None:
+            engagement: bool, speed: bool = False, lining_tensile: float | None = None) -> RegionSpec | None:
     where = f"{TABLE}.regions.{name}"
     entry = read.table(where, entry, REGION_KEYS)
     body = read.text(f"{where}.body", entry.get("body"))
@@ -168,10 +169,10 @@ def _region(read: _Reader, name: str, entry: dict, lining_layers: int, lining_ma
     if not isinstance(is_lining, bool):
         read.problems.append(f"{where}.lining = {shown(is_lining)}: allowed: true or false")
         is_lining = False
-    thermal = {}
+    properties = {}
     if is_lining:
-        thermal = dict(lining_thermal)
-        for key in ("youngs_modulus", "poissons_ratio", *THERMAL_KEYS):
+        properties = dict(lining_thermal, tensile_strength=lining_tensile)
+        for key in ("youngs_modulus", "poissons_ratio", *THERMAL_KEYS, *STRENGTH_KEYS):
             if key in entry:
                 read.problems.append(f"{where}.{key} = {shown(entry[key])}: a lining region takes its material from "
                                      f"the [lining] table (lining.{key}); remove it here")
@@ -185,16 +186,14 @@ def _region(read: _Reader, name: str, entry: dict, lining_layers: int, lining_ma
                 continue
             value = read.number(f"{where}.{key}", entry[key], rng["low"], rng["high"], unit, rng["why"])
             modulus, poisson = (value, poisson) if key == "youngs_modulus" else (modulus, value)
-        for key in THERMAL_KEYS:
-            rng = BODY_THERMAL_RANGES[key]
-            if key in entry:
-                thermal[key] = read.number(f"{where}.{key}", entry[key], rng["low"], rng["high"], THERMAL_UNITS[key],
-                                           rng["why"])
-            elif engagement:
-                # a drawn region's material is always the user's own: the hot engagement needs its heat data
-                read.problems.append(f"{where}.{key}: missing; the region's material was given (youngs_modulus), "
-                                     f"so with [engagement] its thermal properties must be given too "
-                                     f"({rng['low']:g} ≤ value ≤ {rng['high']:g} {THERMAL_UNITS[key]})")
+        # a drawn region's material is always the user's own: the hot engagement needs its heat data, the
+        # speed analysis its density and strengths (with both tables the case is refused, density reported once)
+        properties = _given_numbers(read, where, entry, BODY_THERMAL_RANGES, THERMAL_UNITS,
+                                 "[engagement]" if engagement else "", "thermal properties")
+        if speed and not engagement and "density" not in entry:
+            _given_numbers(read, where, entry, {"density": BODY_THERMAL_RANGES["density"]}, THERMAL_UNITS,
+                           "[speed]", "density")
+        properties.update(_strengths(read, where, entry, speed and not engagement))
     choice = {}
     for key in ("layer", "label"):
         if key in entry:
@@ -214,7 +213,34 @@ def _region(read: _Reader, name: str, entry: dict, lining_layers: int, lining_ma
     if None in (body, modulus, poisson) or None in choice.values():
         return None
     return RegionSpec(name, body, modulus, poisson, lining_layers=lining_layers if is_lining else 0, **choice,
-                      **{k: v for k, v in thermal.items() if v is not None})
+                      **{k: v for k, v in properties.items() if v is not None})
+
+
+def _given_numbers(read: _Reader, where: str, entry: dict, ranges: dict, units: dict, needed_with: str,
+                   what: str) -> dict:
+    """The keys of ``ranges`` a drawn region gives, each read against its range; with ``needed_with`` (the
+    analysis table that reads them) a missing one is a problem naming it."""
+    out = {}
+    for key, rng in ranges.items():
+        if key in entry:
+            out[key] = read.number(f"{where}.{key}", entry[key], rng["low"], rng["high"], units[key], rng["why"])
+        elif needed_with:
+            read.problems.append(f"{where}.{key}: missing; the region's material was given (youngs_modulus), so "
+                                 f"with {needed_with} its {what} must be given too ({rng['low']:g} ≤ value ≤ "
+                                 f"{rng['high']:g} {units[key]})")
+    return out
+
+
+def _strengths(read: _Reader, where: str, entry: dict, speed: bool) -> dict:
+    """A drawn (non-lining) region's yield and tensile strengths, required with [speed] (its material is the
+    user's own: no default material's strength applies), and tensile ≥ yield."""
+    out = _given_numbers(read, where, entry, BODY_STRENGTH_RANGES, STRENGTH_UNITS, "[speed]" if speed else "",
+                         "strengths")
+    low, high = out.get("yield_strength"), out.get("tensile_strength")
+    if low is not None and high is not None and high < low:
+        read.problems.append(f"{where}.tensile_strength = {high:g}: below {where}.yield_strength = {low:g} MPa; "
+                             f"allowed: tensile_strength ≥ yield_strength ({low:g} MPa)")
+    return out
 
 
 def _face(read: _Reader, where: str, name: str, entry: Any) -> FaceSpec | None:
@@ -243,12 +269,14 @@ def _friction(read: _Reader, name: str, entry: Any) -> FrictionSpec | None:
 
 
 def section_file_of(data: dict, source: str, lining_layers: int, lining_material,
-                    lining_thermal: dict | None = None) -> tuple[SectionFileSpec | None, str, list[str]]:
+                    lining_thermal: dict | None = None,
+                    lining_tensile: float | None = None) -> tuple[SectionFileSpec | None, str, list[str]]:
     """The case's section-file spec (None when it has no ``[section_file]``), the drawing's SHA-256 and the
     problems found (each names its key).  ``source`` is the case file (relative paths start beside it);
-    ``lining_material`` (E, ν) and ``lining_thermal`` (THERMAL_KEYS -> value) are the [lining] table's, which
-    the lining regions take."""
+    ``lining_material`` (E, ν), ``lining_thermal`` (THERMAL_KEYS -> value) and ``lining_tensile`` (MPa) are
+    the [lining] table's, which the lining regions take."""
     engagement = isinstance(data.get("engagement"), dict)       # the hot engagement needs every region's heat data
+    speed = isinstance(data.get("speed"), dict)                 # the speed analysis: density and strengths
     problems: list[str] = []
     if TABLE not in data:
         return None, "", problems
@@ -299,7 +327,8 @@ def section_file_of(data: dict, source: str, lining_layers: int, lining_material
             bodies.append(BodySpec(name, role, label))
     regions = []
     for name, entry in _entries(read, f"{TABLE}.regions", table.get("regions", {})).items():
-        region = _region(read, name, entry, lining_layers, lining_material, lining_thermal or {}, engagement)
+        region = _region(read, name, entry, lining_layers, lining_material, lining_thermal or {}, engagement,
+                         speed, lining_tensile)
         if region is not None:
             regions.append(region)
     friction = [f for name, entry in _entries(read, f"{TABLE}.friction", table.get("friction", {})).items()
@@ -336,7 +365,9 @@ def describe_keys() -> list[tuple[str, str]]:
     out.append((f"{TABLE}.regions.NAME", "body; layer (DXF) or label / index / inside (STEP/IGES/BREP); "
                                           "youngs_modulus (MPa) and poissons_ratio, or lining = true; "
                                           "thermal_conductivity, density, specific_heat, expansion_coefficient "
-                                          "(required with [engagement], ranges as the body tables')"))
+                                          "(required with [engagement], ranges as the body tables'); "
+                                          "yield_strength, tensile_strength (MPa) and density (required with "
+                                          "[speed])"))
     out.append((f"{TABLE}.friction.NAME", "body_a, body_b, optional lining_body; the curve choice; optional "
                                            "mate_… choice for body_b's side"))
     out.append(("curve choice", "exactly one of layer, named (DXF group / CAD name), curve_index (CAD), "

@@ -15,11 +15,12 @@ from dataclasses import dataclass
 
 from .readme import write_between_markers
 
-STAGES = ("case", "solve", "comparison", "tilt", "wear-in", "engagement", "evidence", "report", "provenance")
+STAGES = ("case", "solve", "comparison", "tilt", "wear-in", "engagement", "speed", "evidence", "report",
+          "provenance")
 
 # the stages whose keys are there only when the case asks for that analysis (the README says so)
 OPTIONAL_STAGES = {"tilt": "a case with an axis tilt or a radial offset", "wear-in": "a case with a [wear] table",
-                   "engagement": "a case with an [engagement] table"}
+                   "engagement": "a case with an [engagement] table", "speed": "a case with a [speed] table"}
 
 MARKERS = ("<!-- summary keys: start -->", "<!-- summary keys: end -->")
 
@@ -219,6 +220,29 @@ SUMMARY_KEYS: tuple[SummaryKey, ...] = (
         ("conservative_hand_method_hot_end_of_slip", "", "the same at the end of slip of the last engagement"),
         ("engagement_warnings", "", "the warnings of the engagement (also in warnings)"),
         ("engagement_failed", "", "the failed criteria of the engagement (also in failed_criteria)"),
+    )),
+    *_k("speed", False, (
+        ("running_speed_rpm", "rpm", "the running speed of the [speed] table"),
+        ("torque_at_speed_Nm", "N·m", "FE torque capacity at the running speed"),
+        ("capacity_position_at_speed", "", "capacity position ξ at the running speed"),
+        ("effective_radius_at_speed_mm", "mm", "FE effective radius at the running speed"),
+        ("effective_radius_shift_at_speed_mm", "mm", "at speed minus at rest (> 0: the pressure moved outwards)"),
+        ("peak_pressure_at_speed_MPa", "MPa", "highest nodal contact pressure at the running speed"),
+        ("design_peak_pressure_at_speed_MPa", "MPa", "design peak (band mean) at the running speed, judged against "
+                                                     "the allowable"),
+        ("contact_area_fraction_at_speed", "", "share of the friction area in contact at the running speed"),
+        ("max_von_mises_at_speed_MPa", "MPa", "per body: largest von Mises stress, clamp and spin together"),
+        ("max_hoop_stress_at_speed_MPa", "MPa", "per body: largest hoop stress, clamp and spin together"),
+        ("yield_margin_at_speed", "", "per body: yield strength over that von Mises stress, less 1"),
+        ("mean_hoop_stress_spin_MPa", "MPa", "per body: mean hoop stress over its section of the spin alone"),
+        ("burst_speed_rpm", "rpm", "per body: speed at which that mean hoop stress reaches the tensile strength "
+                                   "(null: not tensile)"),
+        ("speed_burst_margin", "", "least burst speed over the running speed, less 1 (null: no body can burst by "
+                                   "the criterion)"),
+        ("conservative_hand_method_at_speed", "", '"both", "uniform wear" or "neither": which hand formula predicts '
+                                                  "no more torque than the FE at the running speed"),
+        ("speed_warnings", "", "the warnings of the speed analysis (also in warnings)"),
+        ("speed_failed", "", "the failed criteria of the speed analysis (also in failed_criteria)"),
     )),
     *_k("provenance", True, (
         ("version", "", "clutchfe version that wrote the file"),

@@ -112,6 +112,10 @@ class RegionSpec:
     density: float | None = None
     specific_heat: float | None = None
     expansion_coefficient: float | None = None
+    # the speed analysis's strengths (MPa); None when not given (a case without [speed] needs none); a lining
+    # region has the [lining] table's tensile_strength and no yield_strength
+    yield_strength: float | None = None
+    tensile_strength: float | None = None
 
     def __post_init__(self):
         if self.inside is not None:

@@ -1,10 +1,10 @@
 """summary.json holds exactly the declared keys (clutchfe/summary_keys.py) and the README shows them.
 
-Four small plate runs through the whole run plan (plain, with a [wear] table worn to its steady
-state, with an axis tilt, and with an [engagement] table): every key each writes is declared,
-every always-present key is in all four, every tilt key in the tilted, every wear-in key in the
-worn and every engagement key in the engaged one, and a unit in a key's name is the unit it
-declares.
+Five small plate runs through the whole run plan (plain, with a [wear] table worn to its steady
+state, with an axis tilt, with an [engagement] and with a [speed] table): every key each writes is
+declared, every always-present key is in all five, every tilt key in the tilted, every wear-in key
+in the worn, every engagement key in the engaged and every speed key in the spinning one, and a
+unit in a key's name is the unit it declares.
 """
 import copy
 import io
@@ -22,7 +22,7 @@ from clutchfe.summary_keys import (BY_KEY, MARKERS, OPTIONAL_STAGES, STAGES, SUM
 from tests.helpers.data import ROOT, SMALL_PLATE, with_tables
 
 # the unit each name ending stands for (longest ending first: _mm3 before _mm, _Nm before _N)
-NAME_UNITS = (("_mm3_per_N_m", "mm³/(N·m)"), ("_mm3", "mm³"), ("_mm", "mm"), ("_C", "°C"), ("_K", "K"), ("_J", "J"), ("_s", "s"), ("_Nm", "N·m"), ("_N", "N"),
+NAME_UNITS = (("_mm3_per_N_m", "mm³/(N·m)"), ("_mm3", "mm³"), ("_mm", "mm"), ("_C", "°C"), ("_K", "K"), ("_rpm", "rpm"), ("_J", "J"), ("_s", "s"), ("_Nm", "N·m"), ("_N", "N"),
               ("_MPa", "MPa"), ("_deg", "deg"), ("_percent", "%"), ("_rad", "rad"), ("_seconds", "s"))
 
 CASES = {
@@ -35,6 +35,7 @@ CASES = {
                                                     "dwell_time": 2.0, "steps_per_engagement": 10,
                                                     "dwell_steps": 4, "speed_law": "inertia",
                                                     "driven_inertia": 0.05}),
+    "spinning": with_tables(SMALL_PLATE, speed={"running_speed": 3000.0}),
 }
 
 
@@ -83,7 +84,7 @@ def test_always_keys_are_in_every_summary(summaries):
 
 def test_each_analysis_writes_all_its_keys_and_only_when_asked(summaries):
     assert summaries["worn"]["worn_in_converged"] is True          # so the steady-state keys are there too
-    for stage, run in (("tilt", "tilted"), ("wear-in", "worn"), ("engagement", "engaged")):
+    for stage, run in (("tilt", "tilted"), ("wear-in", "worn"), ("engagement", "engaged"), ("speed", "spinning")):
         keys = {k.key for k in SUMMARY_KEYS if k.stage == stage}
         assert sorted(keys - set(summaries[run])) == [], stage
         others = [n for n in summaries if n != run]

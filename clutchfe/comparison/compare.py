@@ -367,3 +367,17 @@ def compare(surfaces, hand, required_torque_Nm=None, service_factor=1.0, peak=No
         # xi < 0 is said once
         verdict=" ".join(sentences + [w for w in warnings if w not in sentences]), warnings=tuple(warnings),
         failed_criteria=tuple(failed), **margins, **allowable)
+
+
+def conservative_methods(xi: float) -> str:
+    """Which hand formula is conservative (predicts no more torque than the FE): ξ ≥ 1 both, 0 ≤ ξ < 1
+    uniform wear only, ξ < 0 neither (ξ = (T − T_uw)/(T_up − T_uw), T_uw < T_up)."""
+    if xi >= 1.0:
+        return "both"
+    return "uniform wear" if xi >= 0.0 else "neither"
+
+
+CONSERVATIVE_WORDS = {"both": "both hand formulas are conservative",
+                      "uniform wear": "only uniform wear is conservative",
+                      "neither": "neither hand formula is conservative"}
+

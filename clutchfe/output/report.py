@@ -13,9 +13,11 @@ from ..verification.table import format_error, format_tolerance
 from .report_html import data_uri, render
 
 # tables whose keys only matter when the case asks for that analysis
-OPTIONAL_TABLES = ("wear", "engagement", "cooling")
+OPTIONAL_TABLES = ("wear", "engagement", "cooling", "speed")
 # keys of every material that only the hot engagement uses
 THERMAL_LEAVES = ("thermal_conductivity", "density", "specific_heat", "expansion_coefficient")
+# keys of every material that only the speed analysis uses (with the density)
+STRENGTH_LEAVES = ("yield_strength", "tensile_strength")
 # the three capacity margins: the assumption and its summary key
 MARGINS = (("FE contact", "capacity_margin_fe"), ("uniform pressure", "capacity_margin_uniform_pressure"),
            ("uniform wear", "capacity_margin_uniform_wear"))
@@ -28,7 +30,6 @@ ASSUMPTIONS = (
     "(no penetration, no tension).",
     "No circumferential friction in the section: torque = n μ ∫ p r dA from the normal pressure (the usual "
     "clutch assumption).",
-    "No thermal distortion and no centrifugal load in this solve.",
     "Hand formulas: uniform pressure and uniform wear (p·r = const) at the same axial force (Shigley's "
     "Mechanical Engineering Design, clutch chapter; Juvinall & Marshek).",
     "Material data, μ and the lining's allowable pressure are the user's inputs; μ scatters in service and "
@@ -51,6 +52,11 @@ ANALYSIS_ASSUMPTIONS = {
                    "the thermal strain α ΔT loads the elastic contact, staggered to convergence in every step; "
                    "properties independent of temperature, no wear during the engagement.",
                    "No hot engagement in this solve: the results are at the stress-free (ambient) temperature."),
+    "speed": ("Running speed: the centrifugal body force ρ ω² r in every body (each region's density) as an extra "
+              "load on the condensed contact; stresses of clamp and spin together against the yield strength, and "
+              "the rim-burst estimate from the mean hoop stress of the spin alone against the tensile strength "
+              "(linear elasticity; no plasticity, no temperature).",
+              "No centrifugal load in this solve: the results are at rest."),
 }
 
 
@@ -134,7 +140,10 @@ def _inputs(case) -> str:
         table_name, _, leaf = key.rpartition(".")
         if table_name in OPTIONAL_TABLES and table_name not in case.tables_given:
             continue                # an analysis the case did not ask for: its defaults were not used
-        if leaf in THERMAL_LEAVES and "engagement" not in case.tables_given:
+        if leaf in THERMAL_LEAVES and "engagement" not in case.tables_given \
+                and not (leaf == "density" and "speed" in case.tables_given):
+            continue
+        if leaf in STRENGTH_LEAVES and "speed" not in case.tables_given:
             continue
         spec = SCHEMA.get(table_name, {}).get(leaf)
         unit = spec.unit if spec is not None else ""

@@ -33,11 +33,13 @@ from .model import fe_model_of
 REFERENCE_FORCE = 1000.0        # N
 # Case keys (or whole tables, ending in "."; or a key of every table, starting with "*.") that change
 # neither the mesh nor the stiffness.  The hot engagement's tables and the thermal properties of every
-# material are read by its own heat model on the prepared mesh, never by the stiffness.
+# material are read by its own heat model on the prepared mesh, never by the stiffness; the speed analysis's
+# table and the strengths likewise (its centrifugal load is a load on the prepared model, the strengths are
+# read against its stresses).
 SOLVE_PARAMETERS = ("name", "description", "interface.friction_coefficient", "load.axial_force",
                     "lining.allowable_pressure", "misalignment.", "requirement.", "wear.", "verification.",
                     "engagement.", "cooling.", "*.thermal_conductivity", "*.density", "*.specific_heat",
-                    "*.expansion_coefficient")
+                    "*.expansion_coefficient", "speed.", "*.yield_strength", "*.tensile_strength")
 # Prepared models kept; one of the default demo is a few MB (a tilted one tens of MB).
 CACHE_SIZE = 4
 GUIDANCE_CHOICES = ("held", "self_aligning")

@@ -15,7 +15,7 @@ from pathlib import Path
 from ..case import Case, CaseError, load_case
 from ..toml_input import read_toml, shown
 from ..names import label_problem, safe_label
-from ..schema import SCHEMA, THERMAL_KEYS, Key, describe_range
+from ..schema import SCHEMA, STRENGTH_KEYS, THERMAL_KEYS, Key, describe_range
 
 DISTRIBUTIONS = {                       # distribution -> its parameters
     "uniform": ("low", "high"),
@@ -50,6 +50,9 @@ OUTPUTS = {
     "torque_hot_worst_Nm": "least FE torque capacity while slipping ([engagement] in the base case)",
     "engagement_peak_temperature_C": "highest temperature of the section during the hot engagement",
     "effective_radius_shift_worst_mm": "hot minus cold FE effective radius at the worst instant",
+    "speed_burst_margin": "least burst speed of the bodies over the running speed, minus 1 ([speed] in the base "
+                          "case)",
+    "peak_pressure_at_speed_MPa": "peak contact pressure at the running speed",
 }
 CORE_OUTPUTS = ("torque_fe_Nm", "capacity_position", "peak_pressure_MPa", "effective_radius_mm")
 TOP_KEYS = ("name", "description", "base_case", "method", "samples", "seed", "outputs", "vary", "limit")
@@ -270,16 +273,25 @@ def _unused_by_base(full: str, base: Case | None) -> str:
     if base is None:
         return ""
     table, _, key = full.rpartition(".")
-    hot = table in ("engagement", "cooling") or key in THERMAL_KEYS
-    if hot and base.engagement is None:
+    if key == "density":
+        # read by the hot engagement and by the speed analysis's centrifugal load
+        if base.engagement is None and base.speed is None:
+            return ("only the hot engagement and the speed analysis use it and the base case has no [engagement] "
+                    "table and no [speed] table; allowed: add one of them to the base case")
+    elif (table in ("engagement", "cooling") or key in THERMAL_KEYS) and base.engagement is None:
         return ("only the hot engagement uses it and the base case has no [engagement] table; allowed: add "
                 "[engagement] to the base case")
+    if (table == "speed" or key in STRENGTH_KEYS) and base.speed is None:
+        return ("only the speed analysis uses it and the base case has no [speed] table; allowed: add [speed] to "
+                "the base case")
     if key in ("driven_inertia", "drag_torque") and table == "engagement" \
             and base.engagement.speed_law != "inertia":
         return (f"only used with engagement.speed_law = 'inertia' (the base case has "
                 f"{base.engagement.speed_law!r}); allowed: set speed_law = 'inertia' in the base case")
     if key in THERMAL_KEYS and base.section_file is not None and table != "lining":
         return "the base case draws its section: the bodies' thermal properties are in its [section_file] regions"
+    if key in STRENGTH_KEYS and base.section_file is not None and table != "lining":
+        return "the base case draws its section: the bodies' strengths are in its [section_file] regions"
     return ""
 
 
@@ -420,11 +432,12 @@ def _limit(entry, base: Case | None, problems: list[str]) -> Limit | None:
     spec = case_key(full) if isinstance(full, str) else None
     ignored = full.endswith("_stiffness") and base is not None and base.support.type != "springs" \
         if isinstance(full, str) else False
-    if isinstance(full, str) and spec is not None and (full.partition(".")[0] in ("engagement", "cooling")
-                                                       or full.rpartition(".")[2] in THERMAL_KEYS):
+    if isinstance(full, str) and spec is not None and (full.partition(".")[0] in ("engagement", "cooling", "speed")
+                                                       or full.rpartition(".")[2] in (*THERMAL_KEYS, *STRENGTH_KEYS)):
         # the limit criteria are the cold ones (required torque, allowable pressure): these keys do not move them
-        problems.append(f"limit.key = {shown(full)}: the limit criteria are read on the cold case, which the hot "
-                        "engagement's keys do not change; allowed: vary it with [[vary]] instead")
+        problems.append(f"limit.key = {shown(full)}: the limit criteria are read on the cold case at rest, which "
+                        "the hot engagement's and the speed analysis's keys do not change; allowed: vary it with "
+                        "[[vary]] instead")
         return None
     if spec is None or spec.kind is not float or (base is not None and base.kind not in spec.kinds) \
             or ignored:

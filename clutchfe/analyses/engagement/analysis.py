@@ -15,7 +15,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ...comparison import Comparison, HandCapacity, compare
+from ...comparison import CONSERVATIVE_WORDS, Comparison, HandCapacity, compare, conservative_methods
 from ...errors import PhysicsError
 from ...fem import ContactError
 from ...fem.engagement import EngagementHistory, run_engagement
@@ -41,14 +41,6 @@ class EngagementRun:
     end_of_slip: int                # last slipping step of the last engagement
     worst: int                      # slipping step of the least torque
     coning_mm: dict                 # body -> thermal coning at the end of slip, mm (see thermal_coning_mm)
-
-
-def conservative_methods(xi: float) -> str:
-    """Which hand formula is conservative (predicts no more torque than the FE): ξ ≥ 1 both, 0 ≤ ξ < 1
-    uniform wear only, ξ < 0 neither (ξ = (T − T_uw)/(T_up − T_uw), T_uw < T_up)."""
-    if xi >= 1.0:
-        return "both"
-    return "uniform wear" if xi >= 0.0 else "neither"
 
 
 def _torque_of(setup: ThermalSetup, mu: float):
@@ -229,5 +221,4 @@ def _engagement_start(steps, k: int) -> float:
 
 
 def _words(methods: str) -> str:
-    return {"both": "both hand formulas are conservative", "uniform wear": "only uniform wear is conservative",
-            "neither": "neither hand formula is conservative"}[methods]
+    return CONSERVATIVE_WORDS[methods]

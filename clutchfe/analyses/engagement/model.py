@@ -11,13 +11,13 @@ become the FE stage's (mm, N, s, mJ, mW: fem.heat's converters).
 from __future__ import annotations
 
 import math
-import re
 from dataclasses import dataclass, replace
 
 import numpy as np
 from skfem import MeshTri
 
 from ...comparison import faces_per_modelled_surface
+from ..materials import region_values
 from ...errors import CaseError
 from ...fem import FeModel
 from ...fem.engagement import FrictionHeating, SlipDuty
@@ -45,26 +45,13 @@ class ThermalSetup:
     cooled_segments: dict               # group -> number of boundary segments cooled
 
 
-def _body_table(case, body: str) -> str:
-    """The case table that holds a parametric body's material (disc2 -> disc, separator1 -> separator_plate)."""
-    base = re.sub(r"\d+$", "", body)
-    return {"separator": "separator_plate"}.get(base, base)
-
-
 def region_thermal(case, region) -> tuple[float, float, float, float]:
     """(k W/(m·K), ρ kg/m³, c J/(kg·K), α 1/K) of one region of the case's section."""
-    if region.lining_layers:
-        table = case.lining
-    elif case.section_file is not None:
-        table = next(r for r in case.section_file.regions if r.name == region.name)
-        values = tuple(getattr(table, key, None) for key in THERMAL_KEYS)
-        if any(v is None for v in values):       # the case checks refuse this before a solve
-            raise CaseError([f"section_file.regions.{region.name}: thermal properties missing "
-                             f"({', '.join(k for k, v in zip(THERMAL_KEYS, values) if v is None)})"])
-        return values
-    else:
-        table = getattr(case, _body_table(case, region.body))
-    return tuple(float(getattr(table, key)) for key in THERMAL_KEYS)
+    values = region_values(case, region, THERMAL_KEYS)
+    if any(v is None for v in values):       # the case checks refuse this before a solve
+        raise CaseError([f"section_file.regions.{region.name}: thermal properties missing "
+                         f"({', '.join(k for k, v in zip(THERMAL_KEYS, values) if v is None)})"])
+    return tuple(float(v) for v in values)
 
 
 def triangle_properties(case, section, mesh) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
