@@ -8,11 +8,9 @@ from __future__ import annotations
 
 import copy
 import math
-import tomllib
 
 import pytest
 
-from clutchfe._cli import main
 from clutchfe.case import CaseError, case_from_dict, with_tables
 from clutchfe.engagement_checks import MAX_HEAT_FLUX, MAX_RIM_SPEED, MAX_SLIP_ENERGY
 from clutchfe.schema import SCHEMA, THERMAL_KEYS, describe_range
@@ -20,24 +18,14 @@ from clutchfe.solve import stiffness_key
 from clutchfe.study.evaluate import sample_case
 from clutchfe.study.spec import Grid, study_from_dict
 
-from tests.helpers.data import CONE, PLATE, ROOT, write_toml
+from tests.helpers.case_checks import (check_answer as _check, drawn_cone as _drawn, outside as _outside,
+                                       problems_of as _problems)
+from tests.helpers.data import CONE, PLATE, write_toml
 
 DUTY = {"slip_speed": 1500.0, "slip_time": 0.5}
 HOT_PLATE = with_tables(PLATE, engagement=DUTY)
 HOT_CONE = with_tables(CONE, engagement=DUTY)
 NEW_TABLES = ("engagement", "cooling")
-
-
-def _problems(data: dict) -> list[str]:
-    with pytest.raises(CaseError) as exc:
-        case_from_dict(data)
-    return exc.value.problems
-
-
-def _check(tmp_path, capsys, data) -> tuple[int, str]:
-    path = write_toml(tmp_path / "case.toml", data)
-    code = main(["check", str(path)])
-    return code, capsys.readouterr().err
 
 
 # --- defaults --------------------------------------------------------------------------------------
@@ -107,13 +95,6 @@ def test_flat_holds_the_new_keys():
 
 
 # --- ranges through the command line -----------------------------------------------------------------
-
-
-def _outside(spec):
-    """A value just outside the key's range (below its lowest, else above its highest)."""
-    if spec.low is not None:
-        return spec.low - (1 if spec.kind is int else max(abs(spec.low) * 0.5, 1e-3))
-    return spec.high * 2 + 1
 
 
 NEW_KEYS = [(t, k) for t in NEW_TABLES for k, spec in SCHEMA[t].items()
@@ -188,14 +169,6 @@ def test_a_typed_material_needs_every_thermal_key_it_did_not_type(tmp_path, caps
     assert getattr(case, table).specific_heat == 430.0
     bare = {k: v for k, v in base.items() if k != "engagement"}
     case_from_dict(with_tables(bare, **{table: typed}))
-
-
-def _drawn() -> dict:
-    """The drawn cone demo's tables, its drawing named by absolute path."""
-    cases = ROOT / "cases"
-    data = tomllib.loads((cases / "cone_cup_drawn.toml").read_text(encoding="utf-8"))
-    data["section_file"]["path"] = str(cases / data["section_file"]["path"])
-    return data
 
 
 LINING_HEAT = {"thermal_conductivity": 0.6, "density": 2100.0, "specific_heat": 1100.0, "expansion_coefficient": 25e-6}

@@ -8,35 +8,23 @@ solve here: the analysis itself is tested with its stage.
 from __future__ import annotations
 
 import math
-import tomllib
 
 import pytest
 
-from clutchfe._cli import main
 from clutchfe.case import CaseError, case_from_dict, with_tables
 from clutchfe.schema import SCHEMA, STRENGTH_KEYS, describe_range
 from clutchfe.solve import stiffness_key
 from clutchfe.speed_checks import MAX_RIM_SPEED
 from clutchfe.study.spec import OUTPUTS, Grid, study_from_dict
 
-from tests.helpers.data import CONE, PLATE, ROOT, write_toml
+from tests.helpers.case_checks import (check_answer as _check, drawn_cone as _drawn, outside as _outside,
+                                       problems_of as _problems)
+from tests.helpers.data import CONE, PLATE, write_toml
 
 SPEED = {"running_speed": 3000.0}
 FAST_PLATE = with_tables(PLATE, speed=SPEED)
 FAST_CONE = with_tables(CONE, speed=SPEED)
 BODY_TABLES = ("cone", "cup", "pressure_plate", "disc", "counter_plate", "separator_plate")
-
-
-def _problems(data: dict) -> list[str]:
-    with pytest.raises(CaseError) as exc:
-        case_from_dict(data)
-    return exc.value.problems
-
-
-def _check(tmp_path, capsys, data) -> tuple[int, str]:
-    path = write_toml(tmp_path / "case.toml", data)
-    code = main(["check", str(path)])
-    return code, capsys.readouterr().err
 
 
 # --- defaults --------------------------------------------------------------------------------------
@@ -88,13 +76,6 @@ def test_flat_holds_the_new_keys():
 
 
 # --- ranges through the command line -----------------------------------------------------------------
-
-
-def _outside(spec):
-    """A value just outside the key's range (below its lowest, else above its highest)."""
-    if spec.low is not None:
-        return spec.low - max(abs(spec.low) * 0.5, 1e-3)
-    return spec.high * 2 + 1
 
 
 NEW_KEYS = [("speed", "running_speed"), ("lining", "tensile_strength")] + \
@@ -172,14 +153,6 @@ def test_a_typed_lining_needs_its_density_and_tensile_strength_only():
     assert sorted(p.split(":")[0] for p in problems) == ["lining.density", "lining.tensile_strength"], problems
     case_from_dict(with_tables(FAST_PLATE, lining={"youngs_modulus": 600.0, "density": 2300.0,
                                                    "tensile_strength": 25.0}))
-
-
-def _drawn() -> dict:
-    """The drawn cone demo's tables, its drawing named by absolute path."""
-    cases = ROOT / "cases"
-    data = tomllib.loads((cases / "cone_cup_drawn.toml").read_text(encoding="utf-8"))
-    data["section_file"]["path"] = str(cases / data["section_file"]["path"])
-    return data
 
 
 def test_a_drawn_region_needs_density_and_strengths_with_a_speed_table():
