@@ -10,7 +10,6 @@ import difflib
 import hashlib
 import math
 import os
-import re
 from dataclasses import dataclass, field, make_dataclass, replace
 from pathlib import Path
 from typing import Any
@@ -20,7 +19,7 @@ from .errors import CaseError
 from .names import label_problem, safe_label
 from .schema import ANALYSIS_TABLES, SCHEMA, THERMAL_KEYS, Key, describe_range
 from .section_case import DRAWN_KEYS, DRAWN_TABLES, TABLE as SECTION_TABLE, section_file_of
-from .toml_input import MAX_KEYS, key_count, read_toml, shown
+from .toml_input import MAX_KEYS, key_count, key_text as _key_text, read_toml, shown
 
 
 def _table_class(table: str):
@@ -262,25 +261,6 @@ def _flatten(data: dict, problems: list[str]) -> dict[str, Any]:
             problems.append(f"{_key_text(key)}: unknown top-level key{hint}; allowed at top level: "
                             + ", ".join(SCHEMA[""]))
     return flat
-
-
-def _key_text(key: str) -> str:
-    """A key as the file spells it: bare when it may be (``colour``), quoted otherwise (``""``, ``"a b"``)."""
-    if re.fullmatch(r"[A-Za-z0-9_-]{1,60}", key):
-        return key
-    cut = key if len(key) <= 40 else key[:39]
-    text = "".join(ch if ch.isprintable() and ch not in '"\\' else _toml_escape(ch) for ch in cut)
-    return f'"{text}…"' if len(key) > 40 else f'"{text}"'
-
-
-
-def _toml_escape(ch: str) -> str:
-    """A character as a TOML basic string writes it escaped (so a key with an escape sequence or an
-    unprintable character is shown as it is typed, never sent raw to the terminal)."""
-    if ch in '"\\':
-        return "\\" + ch
-    code = ord(ch)
-    return f"\\u{code:04x}" if code <= 0xFFFF else f"\\U{code:08x}"
 
 
 def _hint(word: str, options: list[str], table: str = "") -> str:

@@ -50,7 +50,7 @@ from .geometry.section_spec import (ROLES, UNITS, Axis, BodySpec, FaceSpec, Fric
                                     SectionFileSpec, spec_problems)
 from .schema import (BODY_MODULUS_RANGE, BODY_POISSON_RANGE, BODY_STRENGTH_RANGES, BODY_THERMAL_RANGES,
                      STRENGTH_KEYS, STRENGTH_UNITS, THERMAL_KEYS, THERMAL_UNITS)
-from .toml_input import shown
+from .toml_input import key_text, shown
 
 TABLE = "section_file"
 # the parametric tables that a drawing replaces: their shapes and materials are in the file
@@ -106,7 +106,7 @@ class _Reader:
             return {}
         for key in value:
             if key not in allowed:
-                self.problems.append(f"{where}.{key}: unknown key; allowed in [{where}]: {', '.join(allowed)}")
+                self.problems.append(f"{where}.{key_text(key)}: unknown key; allowed in [{where}]: {', '.join(allowed)}")
         return value
 
     def text(self, where: str, value: Any, choices: tuple = ()) -> str | None:

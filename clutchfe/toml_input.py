@@ -9,6 +9,7 @@ is accepted.
 from __future__ import annotations
 
 import os
+import re
 import stat
 import tomllib
 from pathlib import Path
@@ -108,3 +109,22 @@ def shown(value, width: int = 60) -> str:
     """``repr(value)`` cut to ``width`` characters, for messages (a value may be a megabyte of text)."""
     text = repr(value)
     return text if len(text) <= width else text[: width - 1] + "…"
+
+
+def key_text(key: str) -> str:
+    """A key as the file spells it: bare when it may be (``colour``), quoted otherwise (``""``, ``"a b"``)."""
+    if re.fullmatch(r"[A-Za-z0-9_-]{1,60}", key):
+        return key
+    cut = key if len(key) <= 40 else key[:39]
+    text = "".join(ch if ch.isprintable() and ch not in '"\\' else _toml_escape(ch) for ch in cut)
+    return f'"{text}…"' if len(key) > 40 else f'"{text}"'
+
+
+
+def _toml_escape(ch: str) -> str:
+    """A character as a TOML basic string writes it escaped (so a key with an escape sequence or an
+    unprintable character is shown as it is typed, never sent raw to the terminal)."""
+    if ch in '"\\':
+        return "\\" + ch
+    code = ord(ch)
+    return f"\\u{code:04x}" if code <= 0xFFFF else f"\\U{code:08x}"

@@ -37,9 +37,10 @@ UTS = 500.0                                # MPa: a plain steel's tensile streng
 
 DISC_SOURCE = "Timoshenko & Goodier, Theory of Elasticity 1970, §32 (rotating disc, free edges)"
 RING_SOURCE = "Timoshenko & Goodier, Theory of Elasticity 1970, §32 (thin ring, a → b); common practice"
-BALANCE_SOURCE = "statics of the half ring cut through the axis, ∫σ_θ dA = ∫ρω²r² dA (common practice)"
-BURST_SOURCE = ("ω_b = ω √(σ_uts/σ̄_θ), the estimate's definition, σ̄_θ from the half-ring balance "
-                "(rim-burst criterion: common practice, from memory)")
+BALANCE_SOURCE = ("Timoshenko & Goodier, Theory of Elasticity, 3rd ed. 1970 (rotating discs): the half ring cut "
+                  "through the axis in equilibrium, ∫σ_θ dA = ∫ρω²r² dA")
+BURST_SOURCE = ("ω_b = ω √(σ_uts/σ̄_θ), the estimate's definition on the half-ring balance (Timoshenko & Goodier "
+                "1970); the average-tangential-stress burst criterion itself is common practice, from memory")
 LINEAR_SOURCE = "linear elasticity: load ρω² × a fixed vector (Timoshenko & Goodier 1970)"
 
 # thin annular disc: bore 20 mm, rim 100 mm, 1 mm thick (t/(b − a) = 1/80, t/b = 1/100).  Plane stress
