@@ -128,10 +128,11 @@ def test_a_slip_with_no_heat_leaves_the_cold_result():
 
 @pytest.mark.slow
 def test_hot_torque_converges_with_the_mesh():
-    # observed order from three meshes refined by 1.5 (Roache 1998, p = ln(d12/d23)/ln 1.5): measured 2.4 for
-    # the hot torque at the end of slip (P2 elasticity, second order away from the lining ends); 1.5..3.5
-    # allowed. The peak temperature is a maximum over the nodes whose place moves with the mesh, so its
-    # differences are not monotone (measured 0.05, 0.10 K): its spread must stay within 1 % of the rise.
+    # observed order from three meshes refined by 1.5 (Roache 1998, p = ln(d12/d23)/ln 1.5): measured 3.1 for
+    # the hot torque at the end of slip, an integral of the pressure (P2 elasticity: order 2 for the fields, up
+    # to 4 for such integrals, Babuška & Miller 1984, from memory); 3 ± 1 allowed. The peak temperature is a
+    # maximum over the nodes whose place moves with the mesh, so its differences are not monotone (measured
+    # 0.05, 0.10 K): its spread must stay within 1 % of the rise.
     torque, peak = [], []
     for refinement in (1.0, 1.5, 2.25):
         case = _case(mesh={"refinement": refinement}, engagements=1, steps_per_engagement=20)
@@ -141,7 +142,7 @@ def test_hot_torque_converges_with_the_mesh():
     d12, d23 = torque[1] - torque[0], torque[2] - torque[1]
     assert d12 * d23 > 0                                    # monotone
     order = math.log(d12 / d23) / math.log(1.5)
-    assert 1.5 <= order <= 3.5, (torque, order)
+    assert abs(order - 3.0) <= 1.0, (torque, order)
     rise = max(peak) - 20.0
     assert (max(peak) - min(peak)) <= 0.01 * rise, peak
 

@@ -237,7 +237,8 @@ def test_time_step_convergence_of_the_coupled_loop(blocks):
         hot.append(hist.steps[-1].torque)
     assert abs(hot[-1] / torque(solver.solve(fields=False)) - 1) > 2e-5     # the heat moved it (5e-5)
     for values in (peak, hot):
-        assert 1.7 < observed_order(values) < 2.3, values
+        order = observed_order(values)
+        assert abs(order - 2.0) < 0.3, (values, order)     # BDF2's formal order 2; measured 2.00 and 2.13
 
 
 def test_thermal_crowning_of_a_plate_heated_on_its_face():
