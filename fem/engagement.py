@@ -98,11 +98,7 @@ class EngagementHistory:
         return self._rises[i][:self.vertices.shape[1]].copy()
 
     def _displacement(self, i: int) -> np.ndarray:
-        fe, solver = self.steps[i].fe, self._solver
-        lam = np.concatenate([f.normal_force for f in fe.interfaces])
-        names = solver.system.model.body_names
-        delta = np.array([fe.rigid_approach[names[j]] for j in solver.prep.free_bodies], dtype=float)
-        return solver.displacement_of(lam, delta, self._load_scale, self._load @ self._rises[i])
+        return self._solver.displacement_of_state(self.steps[i].fe, self._load_scale, self._load @ self._rises[i])
 
     def displacement_at_vertices(self, i: int) -> np.ndarray:
         """(2, nv) u_r, u_z (mm), mechanical + thermal, at the end of step i (one back-substitution)."""

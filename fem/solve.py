@@ -217,6 +217,15 @@ class ContactSolver:
             rhs = rhs + self._extra_inner(extra_load)
         return self.prep.expand(self._solve_K(rhs), np.asarray(delta, dtype=float))
 
+    def displacement_of_state(self, fe: FeResult, load_scale: float = 1.0,
+                              extra_load: np.ndarray | None = None) -> np.ndarray:
+        """u (every dof, mm) of a solved contact state ``fe`` (its contact forces and free bodies'
+        translations) under the model's loads × ``load_scale`` and the extra load it was solved with."""
+        lam = np.concatenate([f.normal_force for f in fe.interfaces]) if fe.interfaces else np.zeros(0)
+        names = self.system.model.body_names
+        delta = [fe.rigid_approach[names[j]] for j in self.prep.free_bodies]
+        return self.displacement_of(lam, delta, load_scale, extra_load)
+
     def _extra_inner(self, extra_load) -> np.ndarray:
         f = np.asarray(extra_load, dtype=float)
         if f.shape != (self.system.basis.N,) or not np.all(np.isfinite(f)):

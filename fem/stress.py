@@ -34,13 +34,16 @@ def quadrature_stress(system: System, u: np.ndarray):
     return stress(strain(field, r), E, nu)
 
 
+def von_mises(rr, zz, tt, rz):
+    """Von Mises equivalent stress of the axisymmetric components (σ_rr, σ_zz, σ_θθ, σ_rz), any shape."""
+    return np.sqrt(0.5 * ((rr - zz) ** 2 + (zz - tt) ** 2 + (tt - rr) ** 2) + 3.0 * rz ** 2)
+
+
 def vertex_stress(system: System, u: np.ndarray) -> dict[str, np.ndarray]:
     from skfem import ElementTriP1
     p1 = system.basis.with_element(ElementTriP1())
     sig = quadrature_stress(system, u)
     lu = splu(asm(_mass, p1).tocsc())
     out = {name: lu.solve(asm(_load, p1, s=s)) for name, s in zip(NAMES, sig)}
-    rr, zz, tt, rz = (out[k] for k in NAMES)
-    out["von_mises"] = np.sqrt(0.5 * ((rr - zz) ** 2 + (zz - tt) ** 2 + (tt - rr) ** 2)
-                               + 3.0 * rz ** 2)
+    out["von_mises"] = von_mises(*(out[k] for k in NAMES))
     return out

@@ -33,7 +33,7 @@ from .extra_load import linear_solve_with
 from .forms import strain, stress
 from .heat import element_values
 from .model import FeModel
-from .stress import _load, _mass, quadrature_stress, vertex_stress   # its projection's own forms
+from .stress import _load, _mass, quadrature_stress, vertex_stress, von_mises   # its projection's own forms
 
 Rise = Union[np.ndarray, Callable[[np.ndarray, np.ndarray], np.ndarray]]
 
@@ -141,9 +141,7 @@ def vertex_thermal_stress(system: System, u: np.ndarray, temperature_rise: Rise,
     correction = splu(asm(_mass, p1).tocsc()).solve(asm(_load, p1, s=s_th))
     for key in ("rr", "zz", "tt"):
         out[key] = out[key] - correction
-    rr, zz, tt, rz = (out[k] for k in ("rr", "zz", "tt", "rz"))
-    out["von_mises"] = np.sqrt(0.5 * ((rr - zz) ** 2 + (zz - tt) ** 2 + (tt - rr) ** 2)
-                               + 3.0 * rz ** 2)
+    out["von_mises"] = von_mises(*(out[k] for k in ("rr", "zz", "tt", "rz")))
     return out
 
 

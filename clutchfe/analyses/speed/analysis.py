@@ -21,7 +21,7 @@ from ...comparison import CONSERVATIVE_WORDS, Comparison, HandCapacity, compare,
 from ...errors import PhysicsError
 from ...fem import ContactError, FeResult
 from ...fem.centrifugal import BodySpeedStress, body_stresses, burst_speed, centrifugal_force, rad_per_s, tonne_per_mm3
-from ...fem.stress import quadrature_stress
+from ...fem.stress import quadrature_stress, von_mises
 from ..materials import material_table, triangle_values
 
 RPM = 2.0 * math.pi / 60.0          # rad/s per rpm
@@ -75,13 +75,6 @@ def _strength(case, solved, body: str, key: str) -> float:
     return float(getattr(material_table(case, region), key))
 
 
-def _full_displacement(solver, fe: FeResult, load_scale: float, extra: np.ndarray) -> np.ndarray:
-    lam = np.concatenate([i.normal_force for i in fe.interfaces])
-    names = solver.system.model.body_names
-    delta = np.array([fe.rigid_approach[names[j]] for j in solver.prep.free_bodies], dtype=float)
-    return solver.displacement_of(lam, delta, load_scale, extra)
-
-
 def speed_of_case(solved, hand: HandCapacity) -> SpeedResult:
     """The solved case (``solve.SolvedCase``) at its [speed] running speed."""
     case, solver = solved.case, solved.solver
@@ -98,7 +91,7 @@ def speed_of_case(solved, hand: HandCapacity) -> SpeedResult:
     cold = compare(solved.fe.interfaces, hand, req.required_torque, req.service_factor,
                    allowable_pressure_MPa=case.lining.allowable_pressure)
     system = solver.system
-    u = _full_displacement(solver, fe, solved.load_scale, load)
+    u = solver.displacement_of_state(fe, solved.load_scale, load)
     clamped = body_stresses(system, u, fields=fe.stress)
     # the spin alone (no clamp, no contact force): the stress the burst estimate is defined on
     u_spin = solver.displacement_of(np.zeros(solver.g0.size), np.zeros(len(solver.prep.free_bodies)), 0.0, load)
@@ -113,8 +106,9 @@ def _linings(case, solved, system, u, u_spin, omega: float) -> list[BodyAtSpeed]
     its carrier's growth and its own spin give it), whatever its carrier can take."""
     names = np.asarray(solved.mesh.region_names)[np.asarray(solved.mesh.triangle_region)]
     dx = system.basis.dx
-    tt_clamped, tt_spin = quadrature_stress(system, u)[2], quadrature_stress(system, u_spin)[2]
-    vm = quadrature_stress(system, u)
+    clamped = quadrature_stress(system, u)          # once: every lining region reads it
+    tt_spin = quadrature_stress(system, u_spin)[2]
+    field = von_mises(*clamped)
     out = []
     for reg in solved.section.regions:
         if not reg.lining_layers:
@@ -124,18 +118,12 @@ def _linings(case, solved, system, u, u_spin, omega: float) -> list[BodyAtSpeed]
         mean_spin = float(np.sum(tt_spin[on] * dx[on]) / area)
         uts = float(case.lining.tensile_strength)
         burst = burst_speed(omega, mean_spin, uts)
-        field = _von_mises(vm)
         at = np.unravel_index(int(np.argmax(np.where(on[:, None], field, -np.inf))), field.shape)
         xy = np.asarray(system.basis.global_coordinates())[:, at[0], at[1]]
         out.append(BodyAtSpeed(f"{reg.body} lining", float(field[at]), (float(xy[0]), float(xy[1])),
-                               float(np.max(tt_clamped[on])), None, None, mean_spin, uts,
+                               float(np.max(clamped[2][on])), None, None, mean_spin, uts,
                                burst / RPM if math.isfinite(burst) else None))
     return out
-
-
-def _von_mises(q) -> np.ndarray:
-    rr, zz, tt, rz = q[:4]
-    return np.sqrt(0.5 * ((rr - zz) ** 2 + (zz - tt) ** 2 + (tt - rr) ** 2) + 3.0 * rz ** 2)
 
 
 def _body(case, solved, s: BodySpeedStress, spin: BodySpeedStress, omega: float) -> BodyAtSpeed:
