@@ -7,7 +7,6 @@ the mesh convergence of the hot torque, and the demo whose verdict changes betwe
 """
 import copy
 import csv
-import io
 import json
 import math
 import tomllib
@@ -16,13 +15,13 @@ import xml.etree.ElementTree as ET
 import meshio
 import numpy as np
 import pytest
-from rich.console import Console
 
 from clutchfe.analyses.engagement import THERMAL_CSV_COLUMNS, THERMAL_KEYS, engagement_summary
 from clutchfe.case import case_from_dict, load_case
-from clutchfe.plan import analyse, run_case
+from clutchfe.plan import analyse
 from clutchfe.study import evaluate, sample_case
 
+from tests.helpers.solving import run_quietly
 from tests.helpers.data import ROOT, SMALL_PLATE, with_tables
 
 SHORT = {"slip_speed": 1200.0, "slip_time": 0.5, "engagements": 2, "dwell_time": 2.0,
@@ -39,10 +38,7 @@ def _case(name="hot", mesh=None, **engagement):
 
 @pytest.fixture(scope="module")
 def hot_run(tmp_path_factory):
-    folder = tmp_path_factory.mktemp("hot") / "run"
-    out = io.StringIO()
-    summary = run_case(_case(), folder, Console(file=out, width=120))
-    return folder, summary, out.getvalue()
+    return run_quietly(_case(), tmp_path_factory.mktemp("hot") / "run")
 
 
 def test_a_run_writes_the_series_the_table_and_the_pictures(hot_run):
@@ -149,10 +145,7 @@ def test_hot_torque_converges_with_the_mesh():
 
 @pytest.fixture(scope="module")
 def demo(tmp_path_factory):
-    folder = tmp_path_factory.mktemp("demo") / "run"
-    out = io.StringIO()
-    summary = run_case(load_case(ROOT / "cases" / "plate_tractor_hot.toml"), folder, Console(file=out, width=120))
-    return folder, summary, out.getvalue()
+    return run_quietly(load_case(ROOT / "cases" / "plate_tractor_hot.toml"), tmp_path_factory.mktemp("demo") / "run")
 
 
 @pytest.mark.slow

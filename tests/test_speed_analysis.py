@@ -6,16 +6,15 @@ estimate); here the analysis stage on a whole case.
 """
 import copy
 import csv
-import io
 import json
 
 import pytest
-from rich.console import Console
 
 from clutchfe.analyses.speed import STRESS_COLUMNS, speed_summary
 from clutchfe.case import case_from_dict, load_case
-from clutchfe.plan import analyse, run_case
+from clutchfe.plan import analyse
 
+from tests.helpers.solving import run_quietly
 from tests.helpers.data import ROOT, SMALL_PLATE, with_tables
 
 
@@ -56,10 +55,7 @@ def test_the_speed_effects_follow_the_square_of_the_speed():
 
 @pytest.fixture(scope="module")
 def demo(tmp_path_factory):
-    folder = tmp_path_factory.mktemp("speed") / "run"
-    out = io.StringIO()
-    summary = run_case(load_case(ROOT / "cases" / "cone_spindle_speed.toml"), folder, Console(file=out, width=120))
-    return folder, summary, out.getvalue()
+    return run_quietly(load_case(ROOT / "cases" / "cone_spindle_speed.toml"), tmp_path_factory.mktemp("speed") / "run")
 
 
 @pytest.mark.slow

@@ -4,15 +4,18 @@
 ContactSolver at the case's own force and initial gaps, for tests that drive fem.wear or
 re-solve directly); its numbers come from the same model the solve service builds.
 """
+import io
 from dataclasses import dataclass
 
 import numpy as np
 import pytest
+from rich.console import Console
 from scipy.sparse.linalg import spsolve
 
 from clutchfe import fem
 from clutchfe.comparison import Comparison, HandCapacity, compare, hand_of
 from clutchfe.geometry import build_section, mesh_section
+from clutchfe.plan import run_case
 from clutchfe.solve import fe_model_of
 
 __all__ = ["CONDENSE_CONE", "Solved", "condensation_problem", "model_of", "solve_case", "solved_case"]
@@ -132,3 +135,10 @@ def harmonic_compliance_by_spsolve(hs, G3, pins, n):
     Gi = (T.T @ G3).tocsc()[inner]
     return Gi.T @ spsolve(K[inner][:, inner].tocsc(), Gi.toarray())
 
+
+
+def run_quietly(case, folder):
+    """(folder, summary.json as returned, the terminal text) of a whole `run_case` into ``folder``."""
+    out = io.StringIO()
+    summary = run_case(case, folder, Console(file=out, width=120))
+    return folder, summary, out.getvalue()
