@@ -227,14 +227,18 @@ class ContactSolver:
         return self.displacement_of(lam, delta, load_scale, extra_load)
 
     def _extra_inner(self, extra_load) -> np.ndarray:
+        return self._extra_full(extra_load)[self.prep.inner]
+
+    def _extra_full(self, extra_load) -> np.ndarray:
         f = np.asarray(extra_load, dtype=float)
         if f.shape != (self.system.basis.N,) or not np.all(np.isfinite(f)):
             raise ValueError(f"extra_load: one finite value per dof ({self.system.basis.N}) expected, "
                              f"got shape {f.shape}")
-        return f[self.prep.inner]
+        return f
 
     def solve(self, gaps: list[np.ndarray] | None = None, load_scale: float = 1.0,
-              fields: bool = True, extra_load: np.ndarray | None = None, start=None) -> FeResult:
+              fields: bool = True, extra_load: np.ndarray | None = None, start=None,
+              body_load: np.ndarray | None = None) -> FeResult:
         """Contact under ``load_scale`` times the model's loads.
 
         ``gaps``: initial normal gap (mm) at every FE node of each interface, replacing
@@ -248,6 +252,9 @@ class ContactSolver:
         ``vertex_stress`` of the total displacement (σ = C ε, no thermal strain subtracted).
         ``start``: closed flags (one per contact node, the interfaces in order, e.g. a nearby
         state's ``lam > 0``) to warm-start the active set from; the answer does not depend on it.
+        ``body_load``: a nodal load (N, every dof, not scaled) that may push a free body along the
+        axis (e.g. the friction of a plate's splines): its gap change as ``extra_load``'s, and its
+        axial resultant on each free body joins that body's balance.
         """
         timings = {k: v for k, v in self.timings.items() if k != "prepare"}
         t0 = time.perf_counter()
@@ -257,6 +264,9 @@ class ContactSolver:
             raise ValueError("one finite gap per interface node expected")
         # a thermal (or centrifugal) load is self-equilibrated body by body, so e stays the model's
         e = load_scale * self.e
+        if body_load is not None:
+            extra_load = body_load if extra_load is None else np.asarray(extra_load, float) + body_load
+            e = e + self.prep.T.T @ self._extra_full(body_load)
         with one_blas_thread():
             with _clock(timings, "contact"):
                 g = g0 + load_scale * self.g_load
