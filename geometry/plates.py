@@ -26,10 +26,10 @@ def _plate(sk: Sketch, body, material, inner, outer, z0, z1, bottom_at, top_at, 
     names = []
     for r, _ in zip(bottom_pts, bottom_pts[1:]):
         names.append(bottom.get(r))
-    names.append(None)                                   # outer rim
+    names.append(f"{body}_rim")                          # outer rim (an outer spline's edge)
     for r, _ in zip(top_pts, top_pts[1:]):
         names.append(top.get(r, top.get("*")))
-    names.append(None)                                   # bore
+    names.append(f"{body}_bore")                         # bore (an inner spline's edge)
     sk.region(body, body, material, corners, names, keys=keys)
 
 

@@ -1,5 +1,6 @@
 """lining.end_shape: the three ways the lining's ends are cut, for the cone and the plate sections."""
 import hashlib
+import re
 import math
 
 import numpy as np
@@ -39,7 +40,11 @@ def _cross2(u, v):
 
 
 def _fingerprint(section):
-    text = repr((section.points, [(r.name, r.loop, r.edge_names) for r in section.regions], section.refine_points))
+    # the plates' rim and bore were named later (the edges a spline drag acts on): unnamed before
+    def before(name):
+        return None if name and re.fullmatch(r"(disc|separator|pressure_plate)\w*_(rim|bore)|counter_plate_rim", name) else name
+    text = repr((section.points, [(r.name, r.loop, type(r.edge_names)(before(n) for n in r.edge_names)) for r in section.regions],
+                 section.refine_points))
     return hashlib.sha256(text.encode()).hexdigest()[:16]
 
 
