@@ -40,7 +40,7 @@ SupportTable, MisalignmentTable = _TABLE_CLASSES["support"], _TABLE_CLASSES["mis
 RequirementTable, MeshTable = _TABLE_CLASSES["requirement"], _TABLE_CLASSES["mesh"]
 WearTable, VerificationTable = _TABLE_CLASSES["wear"], _TABLE_CLASSES["verification"]
 EngagementTable, CoolingTable = _TABLE_CLASSES["engagement"], _TABLE_CLASSES["cooling"]
-SpeedTable = _TABLE_CLASSES["speed"]
+SpeedTable, SplinesTable = _TABLE_CLASSES["speed"], _TABLE_CLASSES["splines"]
 
 
 @dataclass(frozen=True)
@@ -71,6 +71,8 @@ class Case:
     cooling: CoolingTable
     # the speed analysis (centrifugal load at the running speed): None when the case has no [speed] table
     speed: SpeedTable | None
+    # the spline drag of a plate pack: None when the case has no [splines] table
+    splines: SplinesTable | None
     input_sha256: str = ""
     source: str = ""
     warnings: tuple = ()

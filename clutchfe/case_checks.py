@@ -14,6 +14,7 @@ import math
 
 from .engagement_checks import ENGAGEMENT_CHECKS
 from .speed_checks import SPEED_CHECKS
+from .spline_checks import SPLINE_CHECKS
 from .schema import SCHEMA, describe_range
 
 MEAN_PRESSURE_MPA = (1e-3, 20.0)      # see check_mean_pressure
@@ -282,7 +283,7 @@ class CaseValues(dict):
 BASE = (check_radii, check_angle_and_faces, check_face_width)
 RELATIONS = (check_mean_pressure, check_lining_carrier, check_cone_parts, check_plate_parts, check_coning,
              check_lining_ends, check_load, check_support, check_tilt_pivot, check_wear, check_mesh,
-             *ENGAGEMENT_CHECKS, *SPEED_CHECKS)
+             *ENGAGEMENT_CHECKS, *SPEED_CHECKS, *SPLINE_CHECKS)
 
 
 def run_checks(checks, values: dict, kind: str, problems: list[str], warnings: list[str]) -> None:

@@ -144,7 +144,7 @@ FILM_RANGE = _closed(0.0, 20000.0, "0 = adiabatic (a bound); still air 2–25, f
                      "memory")
 # tables whose presence asks for an analysis: their keys are defaulted (and their table_required keys
 # required) only when the case gives the table; without it the case's attribute is None
-ANALYSIS_TABLES = ("engagement", "speed")
+ANALYSIS_TABLES = ("engagement", "speed", "splines")
 
 CONE = ("cone",)
 PLATE = ("plate",)
@@ -566,6 +566,39 @@ SCHEMA: dict[str, dict[str, Key]] = {
                              table_required=True, low=0.0, high=30000.0, high_inclusive=True,
                              why="up to the speeds of high-speed machinery, 30 000 rpm (common practice); the rim "
                                  "speed is checked with the radii"),
+    },
+    "splines": {
+        # the table asks for the spline drag of a plate pack: friction on the splines the discs, separators
+        # and pressure plate slide on holds back part of the clamp force from each further surface
+        "friction_coefficient": Key("", "friction coefficient of the splines the plates slide on (the table asks "
+                                    "for the spline drag of the pack: load and torque per surface with the plates' "
+                                    "spline friction; 0 gives the pack without it)", table_required=True,
+                                    kinds=("plate",), **_closed(0.0, 0.5, "lubricated steel splines about "
+                                                                "0.05–0.15, dry or fretted ones up to ~0.3 (from "
+                                                                "memory); above 0.5 a spline seizes")),
+        **{f"{plate}_friction_coefficient": Key(
+            "", f"spline friction coefficient of the {what} (default: splines.friction_coefficient; 0: it slides "
+                "freely or is not on splines, e.g. a pressure plate on drive straps)", kinds=("plate",),
+            default=lambda c: c["splines.friction_coefficient"],
+            **_closed(0.0, 0.5, "as splines.friction_coefficient"))
+           for plate, what in (("disc", "friction discs"), ("separator", "separator plates"),
+                               ("pressure_plate", "pressure plate"))},
+        **{f"{plate}_spline": Key(
+            "", f"where the {what} carry their splines: \"inner\" (teeth in the bore, on a hub) or \"outer\" "
+                "(teeth on the rim, in a basket or drum)", str, default=side, choices=("inner", "outer"),
+            kinds=("plate",))
+           for plate, what, side in (("disc", "friction discs", "inner"), ("separator", "separator plates", "outer"),
+                                     ("pressure_plate", "pressure plate", "outer"))},
+        **{f"{plate}_pitch_radius": Key(
+            "mm", f"pitch radius of the {what}' splines (default: the radius of the edge they are cut on, the "
+                  "bore or the rim)", kinds=("plate",),
+            default=lambda c, t=table, i=inner, o=outer, pl=plate: c[f"{t}.{i if c[f'splines.{pl}_spline'] == 'inner' else o}"],
+            low=0.5, high=5000.0, low_inclusive=True, high_inclusive=True,
+            why="inside the sizes of clutch parts (0.5 mm … 5 m); checked against the edge it is cut on")
+           for plate, what, table, inner, outer in (
+               ("disc", "friction discs", "disc", "core_inner_radius", "core_outer_radius"),
+               ("separator", "separator plates", "separator_plate", "inner_radius", "outer_radius"),
+               ("pressure_plate", "pressure plate", "pressure_plate", "inner_radius", "outer_radius"))},
     },
     "verification": {
         "mesh_study": Key("", "solve on three meshes (refinement ratio below) and report observed order, "

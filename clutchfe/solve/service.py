@@ -38,7 +38,7 @@ REFERENCE_FORCE = 1000.0        # N
 # read against its stresses).
 SOLVE_PARAMETERS = ("name", "description", "interface.friction_coefficient", "load.axial_force",
                     "lining.allowable_pressure", "misalignment.", "requirement.", "wear.", "verification.",
-                    "engagement.", "cooling.", "*.thermal_conductivity", "*.density", "*.specific_heat",
+                    "engagement.", "cooling.", "splines.", "*.thermal_conductivity", "*.density", "*.specific_heat",
                     "*.expansion_coefficient", "speed.", "*.yield_strength", "*.tensile_strength")
 # Prepared models kept; one of the default demo is a few MB (a tilted one tens of MB).
 CACHE_SIZE = 4

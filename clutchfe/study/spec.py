@@ -53,6 +53,8 @@ OUTPUTS = {
     "speed_burst_margin": "least burst speed of the bodies over the running speed, minus 1 ([speed] in the base "
                           "case)",
     "peak_pressure_at_speed_MPa": "peak contact pressure at the running speed",
+    "torque_with_spline_drag_Nm": "FE torque capacity of the pack with spline drag ([splines] in the base case)",
+    "pack_efficiency": "torque with spline drag over the pack without it",
 }
 CORE_OUTPUTS = ("torque_fe_Nm", "capacity_position", "peak_pressure_MPa", "effective_radius_mm")
 TOP_KEYS = ("name", "description", "base_case", "method", "samples", "seed", "outputs", "vary", "limit")
@@ -284,6 +286,9 @@ def _unused_by_base(full: str, base: Case | None) -> str:
     if (table == "speed" or key in STRENGTH_KEYS) and base.speed is None:
         return ("only the speed analysis uses it and the base case has no [speed] table; allowed: add [speed] to "
                 "the base case")
+    if table == "splines" and base.splines is None:
+        return ("only the spline drag uses it and the base case has no [splines] table; allowed: add [splines] to "
+                "the base case")
     if key in ("driven_inertia", "drag_torque") and table == "engagement" \
             and base.engagement.speed_law != "inertia":
         return (f"only used with engagement.speed_law = 'inertia' (the base case has "
@@ -432,11 +437,11 @@ def _limit(entry, base: Case | None, problems: list[str]) -> Limit | None:
     spec = case_key(full) if isinstance(full, str) else None
     ignored = full.endswith("_stiffness") and base is not None and base.support.type != "springs" \
         if isinstance(full, str) else False
-    if isinstance(full, str) and spec is not None and (full.partition(".")[0] in ("engagement", "cooling", "speed")
+    if isinstance(full, str) and spec is not None and (full.partition(".")[0] in ("engagement", "cooling", "speed", "splines")
                                                        or full.rpartition(".")[2] in (*THERMAL_KEYS, *STRENGTH_KEYS)):
         # the limit criteria are the cold ones (required torque, allowable pressure): these keys do not move them
         problems.append(f"limit.key = {shown(full)}: the limit criteria are read on the cold case at rest, which "
-                        "the hot engagement's and the speed analysis's keys do not change; allowed: vary it with "
+                        "the hot engagement's, the speed analysis's and the spline drag's keys do not change; allowed: vary it with "
                         "[[vary]] instead")
         return None
     if spec is None or spec.kind is not float or (base is not None and base.kind not in spec.kinds) \
