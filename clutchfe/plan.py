@@ -35,6 +35,7 @@ if TYPE_CHECKING:       # the types only; the stages themselves where they run (
     from .analyses.wear import WearRun
     from .analyses.engagement import EngagementRun
     from .analyses.speed import SpeedResult
+    from .analyses.pack import PackResult
     from .solve import SolvedCase, SolveService
     from .verification import TableOrigin
 
@@ -50,6 +51,7 @@ class CaseResult:
     wear: WearRun | None = None         # the case has a [wear] table
     engagement: EngagementRun | None = None     # the case has an [engagement] table (hot engagement)
     speed: SpeedResult | None = None            # the case has a [speed] table (running speed)
+    pack: PackResult | None = None              # the case has a [splines] table (spline drag of the pack)
 
     @property
     def case(self) -> Case:
@@ -93,6 +95,10 @@ def wants_engagement(case: Case) -> bool:
 
 def wants_speed(case: Case) -> bool:
     return "speed" in case.tables_given
+
+
+def wants_pack(case: Case) -> bool:
+    return "splines" in case.tables_given
 
 
 def analyse(case: Case, service: SolveService | None = None, fields: bool = True, progress=None) -> CaseResult:
@@ -153,7 +159,12 @@ def analyse(case: Case, service: SolveService | None = None, fields: bool = True
         from .analyses.speed import speed_of_case       # start-up (module docstring)
         step("at the running speed")
         speed = speed_of_case(solved, hand)
-    return CaseResult(solved, hand, comparison, tilt, wear, engagement, speed)
+    pack = None
+    if wants_pack(case):
+        from .analyses.pack import pack_of_case     # start-up (module docstring)
+        step("spline drag of the pack")
+        pack = pack_of_case(solved, hand)
+    return CaseResult(solved, hand, comparison, tilt, wear, engagement, speed, pack)
 
 
 def gather_evidence(result: CaseResult, service: SolveService, progress=None) -> Evidence:
@@ -278,7 +289,7 @@ def run_case(case: Case, folder: Path, console, service: SolveService | None = N
 
     service = service if service is not None else SolveService()
     with Progress(transient=True, console=console) as progress:
-        step = _Steps(progress, total=8 + wants_engagement(case) + wants_speed(case), listener=on_step)
+        step = _Steps(progress, total=8 + wants_engagement(case) + wants_speed(case) + wants_pack(case), listener=on_step)
         service.prepare(case)
         result = analyse(case, service, progress=step)
         evidence = gather_evidence(result, service, progress=step)
@@ -301,6 +312,9 @@ def run_case(case: Case, folder: Path, console, service: SolveService | None = N
     if result.speed is not None:
         from .analyses.speed import speed_table     # start-up (module docstring)
         extra_tables.append(speed_table(summary))
+    if result.pack is not None:
+        from .analyses.pack import pack_table       # start-up (module docstring)
+        extra_tables.append(pack_table(summary))
     print_table(console, case, summary, folder, extra_tables=extra_tables)
     return summary
 
@@ -320,6 +334,9 @@ def report_sections(result: CaseResult, summary: dict, folder: Path) -> dict:
     if result.speed is not None:
         from .analyses.speed.report import speed_section        # start-up (module docstring)
         sections["speed"] = speed_section(summary, folder, summary.get("speed_warnings", []))
+    if result.pack is not None:
+        from .analyses.pack.report import pack_section      # start-up (module docstring)
+        sections["pack"] = pack_section(summary, folder, summary.get("pack_warnings", []))
     return sections
 
 
@@ -340,6 +357,9 @@ def write_case_files(result: CaseResult, folder: Path) -> None:
     if result.speed is not None:
         from .analyses.speed import write_speed_files       # start-up (module docstring)
         write_speed_files(result.speed, result.case, result.hand, solved.mesh, solved.fe, folder)
+    if result.pack is not None:
+        from .analyses.pack import write_pack_files     # start-up (module docstring)
+        write_pack_files(result.pack, result.case, result.hand, folder)
 
 
 def _run_verdict(summary: dict, result: CaseResult, evidence: Evidence | None) -> None:
@@ -362,6 +382,9 @@ def _run_verdict(summary: dict, result: CaseResult, evidence: Evidence | None) -
     if result.speed is not None:
         verdict += [f"At speed: {w}" for w in summary.get("speed_warnings", []) if w.startswith("WARNING")]
         failed += [name for name in summary.get("speed_failed", []) if name not in failed]
+    if result.pack is not None:
+        verdict += [f"Spline drag: {w}" for w in summary.get("pack_warnings", [])]
+        failed += [name for name in summary.get("pack_failed", []) if name not in failed]
     study = evidence.mesh_study if evidence is not None else {}
     if study and not study.get("skipped") and not study.get("converged", True):
         failed.append("mesh convergence")
@@ -430,6 +453,11 @@ def summary_of(result: CaseResult, evidence: Evidence | None = None) -> dict:
         from .analyses.speed import speed_summary       # start-up (module docstring)
         keys = speed_summary(result.speed, case)
         summary["warnings"] += keys["speed_warnings"]
+        summary.update(keys)
+    if result.pack is not None:
+        from .analyses.pack import pack_summary     # start-up (module docstring)
+        keys = pack_summary(result.pack, case, result.hand)
+        summary["warnings"] += [w for w in keys["pack_warnings"] if w.startswith("WARNING")]
         summary.update(keys)
     summary["versions"] = versions()
     summary["caution"] = CAUTION

@@ -15,12 +15,13 @@ from dataclasses import dataclass
 
 from .readme import write_between_markers
 
-STAGES = ("case", "solve", "comparison", "tilt", "wear-in", "engagement", "speed", "evidence", "report",
-          "provenance")
+STAGES = ("case", "solve", "comparison", "tilt", "wear-in", "engagement", "speed", "spline drag", "evidence",
+          "report", "provenance")
 
 # the stages whose keys are there only when the case asks for that analysis (the README says so)
 OPTIONAL_STAGES = {"tilt": "a case with an axis tilt or a radial offset", "wear-in": "a case with a [wear] table",
-                   "engagement": "a case with an [engagement] table", "speed": "a case with a [speed] table"}
+                   "engagement": "a case with an [engagement] table", "speed": "a case with a [speed] table",
+                   "spline drag": "a case with a [splines] table"}
 
 MARKERS = ("<!-- summary keys: start -->", "<!-- summary keys: end -->")
 
@@ -243,6 +244,32 @@ SUMMARY_KEYS: tuple[SummaryKey, ...] = (
                                                   "no more torque than the FE at the running speed"),
         ("speed_warnings", "", "the warnings of the speed analysis (also in warnings)"),
         ("speed_failed", "", "the failed criteria of the speed analysis (also in failed_criteria)"),
+    )),
+    *_k("spline drag", False, (
+        ("torque_with_spline_drag_Nm", "N·m", "FE torque capacity of the pack with the friction of the plates' splines"),
+        ("torque_without_spline_drag_Nm", "N·m", "the same pack without it (the case's own solve, torque_fe_Nm)"),
+        ("pack_efficiency", "", "torque with spline drag over the pack without it (n μ W R_e at the FE effective "
+                                "radius R_e)"),
+        ("pack_efficiency_rigid_plates", "", "the same share for a pack of rigid plates by the closed form "
+                                             "(Σ F_k / (n W) at the uniform-pressure radius)"),
+        ("capacity_position_with_spline_drag", "", "capacity position ξ of the effective radius with spline drag "
+                                                   "(where the pressure acts; the lost force is pack_efficiency)"),
+        ("effective_radius_with_spline_drag_mm", "mm", "torque with spline drag over μ Σ F_k, the forces the surfaces "
+                                                       "carry with it"),
+        ("capacity_margin_with_spline_drag", "", "torque with spline drag over the required torque times the "
+                                                 "service factor, less 1 (null without a required torque)"),
+        ("last_surface_force_over_clamp_force", "", "axial force of the surface farthest from the pressure plate "
+                                                    "over the clamp force W"),
+        ("spline_drag_iterations", "", "fixed-point steps of pressure and spline drag until no drag changed by "
+                                       "more than 1e-10 W"),
+        ("pack_surfaces", "", "per friction surface, from the pressure plate: name, position_from_pressure_plate, "
+                              "axial_force_N, axial_force_without_drag_N, axial_force_rigid_plates_N, torque_Nm, "
+                              "torque_without_drag_Nm, effective_radius_mm, design_peak_pressure_MPa"),
+        ("spline_plates", "", "per splined plate, from the pressure plate: body, spline (inner/outer), "
+                              "pitch_radius_mm, spline_friction_coefficient, torque_Nm (through its spline), "
+                              "spline_force_N (tangential, T / R_s), spline_drag_N (axial), gain (μ_s μ R_up / R_s)"),
+        ("pack_warnings", "", "what the spline drag found (its WARNING lines also in warnings)"),
+        ("pack_failed", "", "the failed criteria with spline drag (also in failed_criteria)"),
     )),
     *_k("provenance", True, (
         ("version", "", "clutchfe version that wrote the file"),

@@ -1,10 +1,10 @@
 """summary.json holds exactly the declared keys (clutchfe/summary_keys.py) and the README shows them.
 
-Five small plate runs through the whole run plan (plain, with a [wear] table worn to its steady
-state, with an axis tilt, with an [engagement] and with a [speed] table): every key each writes is
-declared, every always-present key is in all five, every tilt key in the tilted, every wear-in key
-in the worn, every engagement key in the engaged and every speed key in the spinning one, and a
-unit in a key's name is the unit it declares.
+Six small plate runs through the whole run plan (plain, with a [wear] table worn to its steady
+state, with an axis tilt, with an [engagement], with a [speed] and with a [splines] table): every key
+each writes is declared, every always-present key is in all six, every tilt key in the tilted, every
+wear-in key in the worn, every engagement key in the engaged, every speed key in the spinning one and
+every spline drag key in the splined one, and a unit in a key's name is the unit it declares.
 """
 import copy
 import io
@@ -36,6 +36,7 @@ CASES = {
                                                     "dwell_steps": 4, "speed_law": "inertia",
                                                     "driven_inertia": 0.05}),
     "spinning": with_tables(SMALL_PLATE, speed={"running_speed": 3000.0}),
+    "splined": with_tables(SMALL_PLATE, splines={"friction_coefficient": 0.1}),
 }
 
 
@@ -84,7 +85,8 @@ def test_always_keys_are_in_every_summary(summaries):
 
 def test_each_analysis_writes_all_its_keys_and_only_when_asked(summaries):
     assert summaries["worn"]["worn_in_converged"] is True          # so the steady-state keys are there too
-    for stage, run in (("tilt", "tilted"), ("wear-in", "worn"), ("engagement", "engaged"), ("speed", "spinning")):
+    for stage, run in (("tilt", "tilted"), ("wear-in", "worn"), ("engagement", "engaged"), ("speed", "spinning"),
+                       ("spline drag", "splined")):
         keys = {k.key for k in SUMMARY_KEYS if k.stage == stage}
         assert sorted(keys - set(summaries[run])) == [], stage
         others = [n for n in summaries if n != run]

@@ -13,7 +13,7 @@ from ..verification.table import format_error, format_tolerance
 from .report_html import data_uri, render
 
 # tables whose keys only matter when the case asks for that analysis
-OPTIONAL_TABLES = ("wear", "engagement", "cooling", "speed")
+OPTIONAL_TABLES = ("wear", "engagement", "cooling", "speed", "splines")
 # keys of every material that only the hot engagement uses
 THERMAL_LEAVES = ("thermal_conductivity", "density", "specific_heat", "expansion_coefficient")
 # keys of every material that only the speed analysis uses (with the density)
@@ -57,6 +57,10 @@ ANALYSIS_ASSUMPTIONS = {
               "the rim-burst estimate from the mean hoop stress of the spin alone against the tensile strength "
               "(linear elasticity; no plasticity, no temperature).",
               "No centrifugal load in this solve: the results are at rest."),
+    "pack": ("Spline drag: friction μ_s T / R_s on the splines of every sliding plate, opposing the closing motion "
+             "(the apply stroke), as an axial load on the splined edge, iterated with the contact pressure to a "
+             "fixed point; compared with the closed form of a pack of rigid plates.",
+             "No spline friction in this solve: every surface of a pack carries the whole clamp force."),
 }
 
 
