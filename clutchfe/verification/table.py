@@ -21,6 +21,7 @@ from .contact import hertz_sphere_on_flat, rigid_flat_punch
 from .limits import linear_gap, load_linearity, thin_lining_limit
 from .solids import lame_cylinder
 from .speed import mean_hoop_and_burst, omega_squared_law, rotating_disc, thin_ring
+from .spline_drag import no_spline_friction, rigid_pack_decay
 from .thermal import (energy_conservation, free_expansion, hollow_cylinder_log_law, plane_slab, semi_infinite_flux,
                       thermal_coning)
 from .tilted import harmonic_vs_solid, winkler_small_tilt
@@ -55,6 +56,8 @@ CASES: list[VerificationCase] = [
     VerificationCase("thin rotating ring", thin_ring),
     VerificationCase("mean hoop stress of a free spinning body and its burst speed", mean_hoop_and_burst),
     VerificationCase("stresses proportional to ω² (linearity in the load)", omega_squared_law),
+    VerificationCase("spline drag: pack of rigid plates against the closed-form load decay", rigid_pack_decay),
+    VerificationCase("spline drag: no spline friction gives the pack without it", no_spline_friction),
 ]
 
 _memo: dict[tuple, tuple] = {}
