@@ -110,6 +110,9 @@ class InterfaceResult:
     # (2, q) r, z of face-A nodes beyond the ends of face B (faces paired by projection), left
     # out of the contact and of the arrays above
     left_out: np.ndarray = field(default_factory=lambda: np.zeros((2, 0)))
+    # (k,) mm: compression of a compliant layer on the interface (fem/compliant_layer.py), zeros without one
+    # (empty from the solvers that have no layer)
+    layer_deflection: np.ndarray = field(default_factory=lambda: np.zeros(0))
 
 
 @dataclass

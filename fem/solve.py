@@ -13,6 +13,7 @@ from skfem import Basis, asm
 from ._threads import one_blas_thread
 
 from .assembly import System, assemble, axial_dofs_of_body
+from .compliant_layer import NodeLayers, solve_layered_contact
 from .condense import condense
 from .forms import axial_moment
 from .lcp import ContactError, LcpSolution, solve_lcp
@@ -238,7 +239,7 @@ class ContactSolver:
 
     def solve(self, gaps: list[np.ndarray] | None = None, load_scale: float = 1.0,
               fields: bool = True, extra_load: np.ndarray | None = None, start=None,
-              body_load: np.ndarray | None = None) -> FeResult:
+              body_load: np.ndarray | None = None, layers: list | None = None) -> FeResult:
         """Contact under ``load_scale`` times the model's loads.
 
         ``gaps``: initial normal gap (mm) at every FE node of each interface, replacing
@@ -255,6 +256,9 @@ class ContactSolver:
         ``body_load``: a nodal load (N, every dof, not scaled) that may push a free body along the
         axis (e.g. the friction of a plate's splines): its gap change as ``extra_load``'s, and its
         axial resultant on each free body joins that body's balance.
+        ``layers``: one :class:`~fem.compliant_layer.CompressionCurve` (or None) per interface, a compliant layer
+        with that compression curve between the condensed bodies (a lining or cushion given by its measured
+        curve); solved by damped Newton steps of the small problem (fem/compliant_layer.py), the factor untouched.
         """
         timings = {k: v for k, v in self.timings.items() if k != "prepare"}
         t0 = time.perf_counter()
@@ -272,9 +276,15 @@ class ContactSolver:
                 g = g0 + load_scale * self.g_load
                 if extra_load is not None:
                     g = g + self.extra_gap(extra_load)
-                sol = solve_lcp(self.C, g, self.B, e, start) if g.size else LcpSolution(
-                    np.zeros(0), np.zeros(0), np.zeros(0), 0, "no contact")
-            interfaces = _interfaces(self.faces, sol)
+                deflection = np.zeros(g.size)
+                if layers is not None and any(curve is not None for curve in layers) and g.size:
+                    out = solve_layered_contact(self.C, g, self.B, e,
+                                                NodeLayers(list(layers), [f.area for f in self.faces]), start)
+                    sol, deflection = out.solution, out.deflection
+                else:
+                    sol = solve_lcp(self.C, g, self.B, e, start) if g.size else LcpSolution(
+                        np.zeros(0), np.zeros(0), np.zeros(0), 0, "no contact")
+            interfaces = _interfaces(self.faces, sol, deflection)
             if fields:
                 with _clock(timings, "stress"):
                     u = self.displacement_of(sol.lam, sol.delta, load_scale, extra_load)
@@ -341,12 +351,14 @@ def _check_free_bodies(system, faces: list[PairedFace], free_bodies):
                                "no contact face to rest on")
 
 
-def _interfaces(faces, sol) -> list[InterfaceResult]:
+def _interfaces(faces, sol, deflection=None) -> list[InterfaceResult]:
     out, start = [], 0
+    deflection = np.zeros(sol.lam.size) if deflection is None else deflection
     for face in faces:
         k = face.gap0.size
         lam = sol.lam[start:start + k]
         gap = np.maximum(sol.gap[start:start + k], 0.0)
+        layer = deflection[start:start + k].copy()
         start += k
         closed = lam > 0
         if not np.any(closed):
@@ -361,7 +373,7 @@ def _interfaces(faces, sol) -> list[InterfaceResult]:
             name=face.pair.name, r=face.xy[0].copy(), z=face.xy[1].copy(),
             pressure=np.maximum(pressure, 0.0), normal_force=lam.copy(),
             tributary_area=face.area.copy(), gap=np.where(closed, 0.0, gap),
-            in_contact=closed, left_out=face.left_out.copy()))
+            in_contact=closed, left_out=face.left_out.copy(), layer_deflection=layer))
     return out
 
 

@@ -1,0 +1,208 @@
+"""A compliant layer with a measured compression curve between two condensed bodies.
+
+A friction lining or the cushion (segment) springs of a dry disc do not follow Hooke's law: suppliers give a
+compression curve, pressure against deflection.  Here such a layer sits on a contact interface as a
+foundation of independent springs, one per contact node (the Winkler foundation; the thin-layer limit of an
+elastic layer, Johnson, Contact Mechanics, Cambridge 1985, §5.9): the node's force λ_i compresses its layer by
+d_i = D(λ_i / A_i), D the deflection the curve gives at a pressure (A_i the node's ring area).  The bodies on
+either side stay the condensed linear ones, so the contact problem becomes
+
+    w = g + C λ + B δ + D(λ / A) ≥ 0,   λ ≥ 0,   λ · w = 0,   Bᵀ λ = −e
+
+(fem/lcp.py's problem with the layer's compression added to the gap).  D increases with the pressure, so
+this is the optimality condition of the convex problem
+
+    min f(λ) = ½ λᵀ C λ + gᵀ λ + Σ A_i Ψ(λ_i / A_i)   over λ ≥ 0, Bᵀ λ = −e,    Ψ(p) = ∫₀ᵖ D(s) ds
+
+and it is solved by Newton's method on the small problem (the Josephy–Newton method for complementarity
+problems, Facchinei & Pang, Finite-Dimensional Variational Inequalities and Complementarity Problems, Springer
+2003, vol. II): at λ_k the curve is replaced by its tangent,
+the linear contact problem with the compliance C + diag(D'(p_k) / A) is solved exactly (fem/lcp.py), and the step
+to it is damped (halved until f decreases: the Armijo rule, Nocedal & Wright, Numerical Optimization 2006,
+§3.1).  A feasible λ stays feasible along the step (λ ≥ 0 and the balance are convex), so the damping never
+leaves the problem.  The curve is piecewise linear, so once every node's segment of the curve stops
+changing the tangent problem is the problem itself and the step is exact: the method ends in finitely many
+steps, usually two to five.
+
+A straight curve p = k d is the linear layer, C + diag(1 / (k A)) in one linear solve (the first step is the
+answer).
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from .lcp import ContactError, LcpSolution, solve_lcp
+
+MAX_STEPS = 60
+# a step is halved at most this many times; the descent is guaranteed, so this is never reached but by round-off
+MAX_HALVINGS = 40
+
+
+@dataclass(frozen=True)
+class CompressionCurve:
+    """Pressure (MPa) against deflection (mm) of a layer, piecewise linear through (0, 0) and the points given,
+    pressure strictly increasing; past the last point it goes on with the last segment's slope (the caller
+    reports an operating point there)."""
+
+    deflection_mm: np.ndarray
+    pressure_MPa: np.ndarray
+
+    def __post_init__(self):
+        d = np.concatenate([[0.0], np.asarray(self.deflection_mm, float)])
+        p = np.concatenate([[0.0], np.asarray(self.pressure_MPa, float)])
+        if d.size < 2 or d.shape != p.shape or not (np.all(np.isfinite(d)) and np.all(np.isfinite(p))):
+            raise ValueError("compression curve: as many finite deflections as pressures, at least one point")
+        if np.any(np.diff(d) <= 0) or np.any(np.diff(p) <= 0):
+            raise ValueError("compression curve: deflection and pressure strictly increasing from (0, 0)")
+        object.__setattr__(self, "deflection_mm", d)
+        object.__setattr__(self, "pressure_MPa", p)
+
+    @classmethod
+    def straight(cls, stiffness_MPa_per_mm: float, up_to_MPa: float = 1.0) -> "CompressionCurve":
+        """The linear layer p = k d."""
+        return cls(np.array([up_to_MPa / stiffness_MPa_per_mm]), np.array([up_to_MPa]))
+
+    @property
+    def last_pressure_MPa(self) -> float:
+        return float(self.pressure_MPa[-1])
+
+    def _segment_of_pressure(self, p):
+        return np.clip(np.searchsorted(self.pressure_MPa, p, side="right") - 1, 0, self.pressure_MPa.size - 2)
+
+    def _segment_of_deflection(self, d):
+        return np.clip(np.searchsorted(self.deflection_mm, d, side="right") - 1, 0, self.deflection_mm.size - 2)
+
+    def compliance(self, p) -> np.ndarray:
+        """dD/dp (mm/MPa) on the segment a pressure lies on (the right-hand one at a corner)."""
+        k = self._segment_of_pressure(np.asarray(p, float))
+        return np.diff(self.deflection_mm)[k] / np.diff(self.pressure_MPa)[k]
+
+    def deflection(self, p) -> np.ndarray:
+        """D(p), mm, for p ≥ 0 (MPa)."""
+        p = np.asarray(p, float)
+        k = self._segment_of_pressure(p)
+        return self.deflection_mm[k] + (p - self.pressure_MPa[k]) * self.compliance(p)
+
+    def pressure(self, d) -> np.ndarray:
+        """p(d), MPa, for d ≥ 0 (mm)."""
+        d = np.asarray(d, float)
+        k = self._segment_of_deflection(d)
+        slope = np.diff(self.pressure_MPa)[k] / np.diff(self.deflection_mm)[k]
+        return self.pressure_MPa[k] + (d - self.deflection_mm[k]) * slope
+
+    def stiffness(self, d) -> np.ndarray:
+        """dp/dd (MPa/mm), the tangent of the curve at a deflection (the right-hand one at a corner)."""
+        k = self._segment_of_deflection(np.asarray(d, float))
+        return np.diff(self.pressure_MPa)[k] / np.diff(self.deflection_mm)[k]
+
+    def energy(self, p) -> np.ndarray:
+        """Ψ(p) = ∫₀ᵖ D(s) ds (N/mm, per unit area): the complementary energy of the layer."""
+        p = np.asarray(p, float)
+        k = self._segment_of_pressure(p)
+        pieces = 0.5 * (self.deflection_mm[1:] + self.deflection_mm[:-1]) * np.diff(self.pressure_MPa)
+        before = np.concatenate([[0.0], np.cumsum(pieces)])[k]
+        return before + 0.5 * (self.deflection_mm[k] + self.deflection(p)) * (p - self.pressure_MPa[k])
+
+    def in_series(self, other: "CompressionCurve") -> "CompressionCurve":
+        """Two layers one on the other carry one pressure and add their deflections."""
+        p = np.union1d(self.pressure_MPa, other.pressure_MPa)[1:]
+        return CompressionCurve(self.deflection(p) + other.deflection(p), p)
+
+    def scaled(self, deflection_factor: float) -> "CompressionCurve":
+        """The same curve with every deflection times a factor (half a cushion on each face of a disc)."""
+        return CompressionCurve(self.deflection_mm[1:] * deflection_factor, self.pressure_MPa[1:])
+
+
+@dataclass(frozen=True)
+class LayerSolution:
+    solution: LcpSolution           # lam, delta; gap: what is left open outside the layer (0 where closed)
+    deflection: np.ndarray          # compression of the layer at every node, mm (0 where open or no layer)
+    steps: int                      # Newton steps (tangent contact problems solved)
+
+
+class NodeLayers:
+    """The layer of every contact node: one curve per group of nodes (an interface), None for no layer."""
+
+    def __init__(self, curves: list, areas: list):
+        if len(curves) != len(areas):
+            raise ValueError("one curve (or None) per interface expected")
+        self.groups = []
+        start = 0
+        for curve, area in zip(curves, areas):
+            area = np.asarray(area, float)
+            idx = np.arange(start, start + area.size)
+            start += area.size
+            if curve is None:
+                continue
+            # a node without ring area (a vertex on the axis) carries no force: it gets no layer
+            has = area > 1e-12 * max(area.max(initial=0.0), 1e-300)
+            self.groups.append((curve, idx[has], area[has]))
+        self.size = start
+
+    def compression(self, lam) -> np.ndarray:
+        d = np.zeros(self.size)
+        for curve, idx, area in self.groups:
+            d[idx] = curve.deflection(np.maximum(lam[idx], 0.0) / area)
+        return d
+
+    def compliance(self, lam) -> np.ndarray:
+        """dD/dλ per node (mm/N)."""
+        c = np.zeros(self.size)
+        for curve, idx, area in self.groups:
+            c[idx] = curve.compliance(np.maximum(lam[idx], 0.0) / area) / area
+        return c
+
+    def segments(self, lam) -> np.ndarray:
+        s = np.full(self.size, -1)
+        for curve, idx, area in self.groups:
+            s[idx] = curve._segment_of_pressure(np.maximum(lam[idx], 0.0) / area)
+        return s
+
+    def energy(self, lam) -> float:
+        return float(sum(np.sum(area * curve.energy(np.maximum(lam[idx], 0.0) / area))
+                         for curve, idx, area in self.groups))
+
+
+def solve_layered_contact(C, g, B, e, layers: NodeLayers, start=None) -> LayerSolution:
+    """The contact problem with a compliant layer (module docstring), by damped Newton steps of exact tangent
+    contact problems; ``start``: closed flags to warm-start the first tangent problem from."""
+    if layers.size != g.size:
+        raise ValueError(f"layers: one per contact node ({g.size}) expected, got {layers.size}")
+
+    def merit(lam):
+        return float(0.5 * lam @ (C @ lam) + g @ lam) + layers.energy(lam)
+
+    lam = np.zeros(g.size)
+    closed = start
+    for step in range(1, MAX_STEPS + 1):
+        c = layers.compliance(lam)
+        # the tangent problem: D(λ/A) ≈ D_k + c (λ − λ_k) added to the gap
+        shift = layers.compression(lam) - c * lam
+        trial = solve_lcp(C + np.diag(c), g + shift, B, e, start=closed)
+        if np.array_equal(layers.segments(trial.lam), layers.segments(lam)):
+            lam = trial.lam
+            break               # the tangent problem was the problem on every node's segment: exact
+        if step == 1:
+            lam = trial.lam     # the first iterate is feasible; every later one is a damped step from it
+        else:
+            t, f0 = 1.0, merit(lam)
+            for _ in range(MAX_HALVINGS):
+                candidate = lam + t * (trial.lam - lam)
+                if merit(candidate) <= f0:
+                    break
+                t *= 0.5
+            lam = candidate
+        closed = lam > 0
+    else:
+        raise ContactError(f"the compliant layer did not settle in {MAX_STEPS} Newton steps")
+    # δ and the gap of the final state: the tangent problem at λ is exact there
+    sol = _final_state(C, g, B, e, layers, lam, trial)
+    return LayerSolution(sol, layers.compression(sol.lam), step)
+
+
+def _final_state(C, g, B, e, layers, lam, trial) -> LcpSolution:
+    d = layers.compression(lam)
+    gap = g + C @ lam + B @ trial.delta + d
+    return LcpSolution(lam, trial.delta, np.where(lam > 0, 0.0, gap), trial.iterations, "layer newton")
