@@ -3,7 +3,7 @@
 A friction lining or the cushion (segment) springs of a dry disc do not follow Hooke's law: suppliers give a
 compression curve, pressure against deflection.  Here such a layer sits on a contact interface as a
 foundation of independent springs, one per contact node (the Winkler foundation; the thin-layer limit of an
-elastic layer, Johnson, Contact Mechanics, Cambridge 1985, §5.9): the node's force λ_i compresses its layer by
+elastic layer, Johnson, Contact Mechanics, Cambridge 1985, §5.8): the node's force λ_i compresses its layer by
 d_i = D(λ_i / A_i), D the deflection the curve gives at a pressure (A_i the node's ring area).  The bodies on
 either side stay the condensed linear ones, so the contact problem becomes
 
@@ -44,14 +44,18 @@ MAX_HALVINGS = 40
 class CompressionCurve:
     """Pressure (MPa) against deflection (mm) of a layer, piecewise linear through (0, 0) and the points given,
     pressure strictly increasing; past the last point it goes on with the last segment's slope (the caller
-    reports an operating point there)."""
+    reports an operating point there), or, ``solid_past_last``, it is solid there: no further deflection (a
+    cushion pressed flat)."""
 
     deflection_mm: np.ndarray
     pressure_MPa: np.ndarray
+    solid_past_last: bool = False
 
     def __post_init__(self):
-        d = np.concatenate([[0.0], np.asarray(self.deflection_mm, float)])
-        p = np.concatenate([[0.0], np.asarray(self.pressure_MPa, float)])
+        d = np.asarray(self.deflection_mm, float)
+        p = np.asarray(self.pressure_MPa, float)
+        if not (d.size and d[0] == 0.0 and p.size and p[0] == 0.0):     # (0, 0) is implied
+            d, p = np.concatenate([[0.0], d]), np.concatenate([[0.0], p])
         if d.size < 2 or d.shape != p.shape or not (np.all(np.isfinite(d)) and np.all(np.isfinite(p))):
             raise ValueError("compression curve: as many finite deflections as pressures, at least one point")
         if np.any(np.diff(d) <= 0) or np.any(np.diff(p) <= 0):
@@ -74,16 +78,21 @@ class CompressionCurve:
     def _segment_of_deflection(self, d):
         return np.clip(np.searchsorted(self.deflection_mm, d, side="right") - 1, 0, self.deflection_mm.size - 2)
 
+    def _solid(self, p) -> np.ndarray:
+        return self.solid_past_last & (np.asarray(p, float) >= self.pressure_MPa[-1])
+
     def compliance(self, p) -> np.ndarray:
         """dD/dp (mm/MPa) on the segment a pressure lies on (the right-hand one at a corner)."""
-        k = self._segment_of_pressure(np.asarray(p, float))
-        return np.diff(self.deflection_mm)[k] / np.diff(self.pressure_MPa)[k]
+        p = np.asarray(p, float)
+        k = self._segment_of_pressure(p)
+        return np.where(self._solid(p), 0.0, np.diff(self.deflection_mm)[k] / np.diff(self.pressure_MPa)[k])
 
     def deflection(self, p) -> np.ndarray:
         """D(p), mm, for p ≥ 0 (MPa)."""
         p = np.asarray(p, float)
         k = self._segment_of_pressure(p)
-        return self.deflection_mm[k] + (p - self.pressure_MPa[k]) * self.compliance(p)
+        return np.where(self._solid(p), self.deflection_mm[-1],
+                        self.deflection_mm[k] + (p - self.pressure_MPa[k]) * self.compliance(p))
 
     def pressure(self, d) -> np.ndarray:
         """p(d), MPa, for d ≥ 0 (mm)."""
@@ -94,25 +103,35 @@ class CompressionCurve:
 
     def stiffness(self, d) -> np.ndarray:
         """dp/dd (MPa/mm), the tangent of the curve at a deflection (the right-hand one at a corner)."""
-        k = self._segment_of_deflection(np.asarray(d, float))
-        return np.diff(self.pressure_MPa)[k] / np.diff(self.deflection_mm)[k]
+        d = np.asarray(d, float)
+        k = self._segment_of_deflection(d)
+        slope = np.diff(self.pressure_MPa)[k] / np.diff(self.deflection_mm)[k]
+        return np.where(self.solid_past_last & (d >= self.deflection_mm[-1]), np.inf, slope)
 
     def energy(self, p) -> np.ndarray:
         """Ψ(p) = ∫₀ᵖ D(s) ds (N/mm, per unit area): the complementary energy of the layer."""
         p = np.asarray(p, float)
         k = self._segment_of_pressure(p)
         pieces = 0.5 * (self.deflection_mm[1:] + self.deflection_mm[:-1]) * np.diff(self.pressure_MPa)
-        before = np.concatenate([[0.0], np.cumsum(pieces)])[k]
-        return before + 0.5 * (self.deflection_mm[k] + self.deflection(p)) * (p - self.pressure_MPa[k])
+        cumulative = np.concatenate([[0.0], np.cumsum(pieces)])
+        inside = cumulative[k] + 0.5 * (self.deflection_mm[k] + self.deflection(p)) * (p - self.pressure_MPa[k])
+        past = cumulative[-1] + self.deflection_mm[-1] * (p - self.pressure_MPa[-1])
+        return np.where(self._solid(p), past, inside)
 
     def in_series(self, other: "CompressionCurve") -> "CompressionCurve":
-        """Two layers one on the other carry one pressure and add their deflections."""
+        """Two layers one on the other carry one pressure and add their deflections (solid where both are)."""
         p = np.union1d(self.pressure_MPa, other.pressure_MPa)[1:]
-        return CompressionCurve(self.deflection(p) + other.deflection(p), p)
+        if self.solid_past_last != other.solid_past_last:
+            # one goes solid at its last point: one more point past both, so that the last segment (and the
+            # extension past it) is the other's alone
+            p = np.append(p, 2.0 * p[-1])
+        return CompressionCurve(self.deflection(p) + other.deflection(p), p,
+                                self.solid_past_last and other.solid_past_last)
 
     def scaled(self, deflection_factor: float) -> "CompressionCurve":
         """The same curve with every deflection times a factor (half a cushion on each face of a disc)."""
-        return CompressionCurve(self.deflection_mm[1:] * deflection_factor, self.pressure_MPa[1:])
+        return CompressionCurve(self.deflection_mm[1:] * deflection_factor, self.pressure_MPa[1:],
+                                self.solid_past_last)
 
 
 @dataclass(frozen=True)
@@ -157,7 +176,9 @@ class NodeLayers:
     def segments(self, lam) -> np.ndarray:
         s = np.full(self.size, -1)
         for curve, idx, area in self.groups:
-            s[idx] = curve._segment_of_pressure(np.maximum(lam[idx], 0.0) / area)
+            p = np.maximum(lam[idx], 0.0) / area
+            # the solid part past the last point is a segment of its own
+            s[idx] = curve._segment_of_pressure(p) + curve._solid(p)
         return s
 
     def energy(self, lam) -> float:

@@ -17,6 +17,7 @@ from typing import Callable
 
 from .checks import Check
 from .store import VerificationRows, json_row, store_table
+from .compression import straight_curve_is_the_linear_lining, tangent_stiffness_is_the_slope, uniform_stack_on_the_curve
 from .contact import hertz_sphere_on_flat, rigid_flat_punch
 from .limits import linear_gap, load_linearity, thin_lining_limit
 from .solids import lame_cylinder
@@ -58,6 +59,9 @@ CASES: list[VerificationCase] = [
     VerificationCase("stresses proportional to ω² (linearity in the load)", omega_squared_law),
     VerificationCase("spline drag: pack of rigid plates against the closed-form load decay", rigid_pack_decay),
     VerificationCase("spline drag: no spline friction gives the pack without it", no_spline_friction),
+    VerificationCase("compression curve: a straight curve is the linear lining", straight_curve_is_the_linear_lining),
+    VerificationCase("compression curve: a uniform stack lands on the curve at W / A", uniform_stack_on_the_curve),
+    VerificationCase("compression curve: tangent stiffness under a small extra load", tangent_stiffness_is_the_slope),
 ]
 
 _memo: dict[tuple, tuple] = {}

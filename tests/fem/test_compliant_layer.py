@@ -1,13 +1,10 @@
 """The compliant layer (fem/compliant_layer.py): a measured compression curve between condensed bodies.
 
 Sources: springs in series add their compliances (common practice); the Winkler foundation as the thin-layer
-limit of an elastic layer with ν = 0, p = (E / t) d (Johnson, Contact Mechanics, Cambridge 1985, §5.9); the
+limit of an elastic layer with ν = 0, p = (E / t) d (Johnson, Contact Mechanics, Cambridge 1985, §5.8); the
 convex problem and its optimality conditions (Nocedal & Wright, Numerical Optimization 2006, §16.1).
 """
 from __future__ import annotations
-
-import math
-from dataclasses import replace
 
 import numpy as np
 import pytest
@@ -15,22 +12,9 @@ import pytest
 from clutchfe.fem import ContactSolver
 from clutchfe.fem.compliant_layer import CompressionCurve, NodeLayers, solve_layered_contact
 from clutchfe.fem.lcp import solve_lcp
-from clutchfe.verification.tilted import LINING_E, LINING_T, R1, R2, W, lined_annulus
-
-# a stiffening facing curve (invented, demo-like): soft at first, four times stiffer at 3 MPa
-FACING = CompressionCurve(np.array([0.004, 0.010, 0.016, 0.020]), np.array([0.2, 0.8, 1.8, 3.0]))
-AREA = math.pi * (R2 ** 2 - R1 ** 2)
-
-
-def _rigid_annulus(gap_slope: float = 0.0):
-    """The lined annulus of the verify suite with every body numerically rigid (the lining too), and an
-    optional coned gap g0 = s (r − r1) (the layer supplies all the compliance)."""
-    model = lined_annulus(2e8, 2e8, 0.0, 15, 2)
-    model = replace(model, element_youngs_modulus=np.full_like(model.element_youngs_modulus, 2e8))
-    if gap_slope:
-        pair = replace(model.contacts[0], initial_gap_function=lambda r, z: gap_slope * (r - R1))
-        model = replace(model, contacts=[pair])
-    return model
+from clutchfe.verification.compression import (AREA, FACING, rigid_annulus, straight_curve_is_the_linear_lining,
+                                               tangent_stiffness_is_the_slope, uniform_stack_on_the_curve)
+from clutchfe.verification.tilted import W
 
 
 # --- the curve ------------------------------------------------------------------------------------------
@@ -61,7 +45,7 @@ def test_curve_refuses_what_is_not_a_compression_curve():
 
 def test_straight_curve_is_the_linear_layer_in_one_step():
     # p = k d is the compliance C + diag(1 / (k A)): one linear contact problem
-    model = _rigid_annulus(gap_slope=2e-4)
+    model = rigid_annulus(gap_slope=2e-4)
     solver = ContactSolver(model)
     area = solver.faces[0].area
     k = 120.0
@@ -77,7 +61,7 @@ def test_straight_curve_is_the_linear_layer_in_one_step():
 def test_nonlinear_layer_meets_the_contact_conditions():
     # a coned gap that opens part of the face on the stiffening curve: gap ≥ 0, λ ≥ 0, λ·gap = 0 with the layer's
     # compression in the gap, the balance of the free body (Nocedal & Wright 2006, §16.1)
-    solver = ContactSolver(_rigid_annulus(gap_slope=1.5e-3))
+    solver = ContactSolver(rigid_annulus(gap_slope=1.5e-3))
     g = solver.g0 + solver.g_load
     layers = NodeLayers([FACING], [solver.faces[0].area])
     out = solve_layered_contact(solver.C, g, solver.B, solver.e, layers)
@@ -93,45 +77,38 @@ def test_nonlinear_layer_meets_the_contact_conditions():
     assert np.max(lam / np.where(solver.faces[0].area > 0, solver.faces[0].area, 1.0)) > 0.8   # past a corner
 
 
-# --- through the contact solver -----------------------------------------------------------------------------
+# --- the verify rows (clutchfe.verification.compression) ---------------------------------------------------------
 
 
-def test_uniform_stack_lands_on_the_curve_at_W_over_A():
-    # rigid bodies, uniform load: every node at p = W / A and the layer at D(W / A) (the curve's own point)
-    solver = ContactSolver(_rigid_annulus())
+def test_verification_rows_of_the_layer_pass():
+    rows = straight_curve_is_the_linear_lining() + uniform_stack_on_the_curve() + tangent_stiffness_is_the_slope()
+    assert len(rows) == 6 and all(r.passed for r in rows), [r for r in rows if not r.passed]
+
+
+def test_straight_curve_row_catches_a_stiffness_two_percent_off():
+    rows = straight_curve_is_the_linear_lining(stiffness_factor=1.02)
+    assert not all(r.passed for r in rows)
+
+
+def test_uniform_stack_through_the_contact_solver_reports_the_layer():
+    # the solver's results carry the layer: pressure W / A, deflection D(W / A), the ring's approach by it
+    solver = ContactSolver(rigid_annulus())
     fe = solver.solve(layers=[FACING])
     itf = fe.interfaces[0]
     p = W / AREA
-    assert np.max(np.abs(itf.pressure / p - 1.0)) <= 1e-6
     assert np.max(np.abs(itf.layer_deflection / FACING.deflection(p) - 1.0)) <= 1e-6
     # the pressed ring moves by the layer's compression (its own strain is 1e-6 of it)
     assert abs(abs(fe.rigid_approach["top"]) / FACING.deflection(p) - 1.0) <= 1e-4
+    assert np.all(solver.solve(fields=False).interfaces[0].layer_deflection == 0.0)    # no layer, no deflection
 
 
-def test_tangent_stiffness_seen_by_a_small_extra_load_is_the_curve_slope():
-    solver = ContactSolver(_rigid_annulus())
-    base = solver.solve(layers=[FACING], fields=False).interfaces[0]
-    more = solver.solve(load_scale=1.0 + 1e-4, layers=[FACING], fields=False).interfaces[0]
-    dp = np.mean(more.pressure) - np.mean(base.pressure)
-    dd = np.mean(more.layer_deflection) - np.mean(base.layer_deflection)
-    slope = float(FACING.stiffness(np.mean(base.layer_deflection)))
-    assert abs(dp / dd / slope - 1.0) <= 1e-6
-
-
-def test_straight_layer_matches_the_thin_linear_lining():
-    # the ν = 0 lining of E, t between rigid bodies is the Winkler layer k = E / t (Johnson 1985, §5.9); with a
-    # coned gap the pressure is k (δ − s (r − r1)) in both, and the layer needs no meshed lining
-    s = 1e-4
-    lined = lined_annulus(2e8, 2e8, 0.0, 15, 2)
-    lined = replace(lined, contacts=[replace(lined.contacts[0], initial_gap_function=lambda r, z: s * (r - R1))])
-    continuum = ContactSolver(lined).solve(fields=False).interfaces[0]
-    layer = ContactSolver(_rigid_annulus(gap_slope=s)).solve(
-        layers=[CompressionCurve.straight(LINING_E / LINING_T, 10.0)], fields=False).interfaces[0]
-    # measured 1e-5 of the peak (the continuum's shear between nodes); 1e-4 leaves room for round-off
-    assert np.max(np.abs(layer.pressure - continuum.pressure)) <= 1e-4 * continuum.pressure.max()
-    r_eff = [float(np.sum(i.normal_force * i.r) / np.sum(i.normal_force)) for i in (layer, continuum)]
-    assert abs(r_eff[0] / r_eff[1] - 1.0) <= 1e-6
-    # and both are the closed form's straight line, dp/dr = −k s: to within the nodal pressure λ / A of a sloped
-    # pressure on ring elements (8e-4 measured with 1 mm elements; 2e-3)
-    slope = np.polyfit(layer.r, layer.pressure, 1)[0]
-    assert abs(slope / (-LINING_E / LINING_T * s) - 1.0) <= 2e-3
+def test_cushion_pressed_flat_is_solid_past_its_last_point():
+    # a curve solid past its last point adds no deflection there; in series with a lining the lining's slope alone
+    cushion = CompressionCurve(np.array([0.1, 0.2]), np.array([0.1, 0.3]), solid_past_last=True)
+    assert cushion.deflection(0.5) == 0.2 and cushion.compliance(0.5) == 0.0
+    both = FACING.in_series(cushion)
+    assert abs(both.compliance(1.0) - FACING.compliance(1.0)) <= 1e-12
+    assert abs(both.deflection(1.0) - (FACING.deflection(1.0) + 0.2)) <= 1e-12
+    # through the solver: rigid stack pressed past the cushion's flat point lands on the lining's curve plus 0.2
+    itf = ContactSolver(rigid_annulus()).solve(layers=[both], fields=False).interfaces[0]
+    assert abs(np.mean(itf.layer_deflection) - float(FACING.deflection(W / AREA)) - 0.2) <= 1e-6
