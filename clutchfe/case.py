@@ -18,6 +18,7 @@ from .case_checks import BASE, RELATIONS, CaseValues, run_checks
 from .errors import CaseError
 from .names import label_problem, safe_label
 from .schema import ANALYSIS_TABLES, SCHEMA, THERMAL_KEYS, Key, describe_range
+from .curve_case import CURVE_TABLES, CurvePoints, check_curves, curve_points_of, split_curve_lists
 from .section_case import DRAWN_KEYS, DRAWN_TABLES, TABLE as SECTION_TABLE, section_file_of
 from .toml_input import MAX_KEYS, key_count, key_text as _key_text, read_toml, shown
 
@@ -41,6 +42,7 @@ RequirementTable, MeshTable = _TABLE_CLASSES["requirement"], _TABLE_CLASSES["mes
 WearTable, VerificationTable = _TABLE_CLASSES["wear"], _TABLE_CLASSES["verification"]
 EngagementTable, CoolingTable = _TABLE_CLASSES["engagement"], _TABLE_CLASSES["cooling"]
 SpeedTable, SplinesTable = _TABLE_CLASSES["speed"], _TABLE_CLASSES["splines"]
+LiningCurveTable, CushionTable = _TABLE_CLASSES["lining_curve"], _TABLE_CLASSES["cushion"]
 
 
 @dataclass(frozen=True)
@@ -73,6 +75,9 @@ class Case:
     speed: SpeedTable | None
     # the spline drag of a plate pack: None when the case has no [splines] table
     splines: SplinesTable | None
+    # the measured compression curves (their scale; the points below): None without the table
+    lining_curve: LiningCurveTable | None
+    cushion: CushionTable | None
     input_sha256: str = ""
     source: str = ""
     warnings: tuple = ()
@@ -81,6 +86,8 @@ class Case:
     # parametric tables; None: the parametric shapes.  Its SHA-256 is an input hash like the case file's.
     section_file: Any = None
     section_file_sha256: str = ""
+    lining_curve_points: CurvePoints | None = None
+    cushion_points: CurvePoints | None = None
 
     @property
     def disc_count(self) -> int:
@@ -97,6 +104,10 @@ class Case:
                 value = getattr(obj, key)
                 if value is not None:
                     out[f"{table}.{key}"] = value
+        for table, points in (("lining_curve", self.lining_curve_points), ("cushion", self.cushion_points)):
+            if points is not None:
+                x, y, _ = CURVE_TABLES[table]
+                out[f"{table}.{x}"], out[f"{table}.{y}"] = list(points.deflection_mm), list(points.values)
         if self.section_file is not None:
             # as seen from the case file, so that the same case gives the same report in any checkout
             folder = Path(self.source).resolve().parent if self.source else Path.cwd()
@@ -180,7 +191,8 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
         raise CaseError([f"case: holds {count} keys; allowed: at most {MAX_KEYS} (clutchfe keys lists them)"])
     problems: list[str] = []
     drawing = {k: v for k, v in data.items() if k == SECTION_TABLE}
-    flat = _flatten({k: v for k, v in data.items() if k != SECTION_TABLE}, problems)
+    scalars, curve_lists = split_curve_lists({k: v for k, v in data.items() if k != SECTION_TABLE})
+    flat = _flatten(scalars, problems)
     kind = flat.get("kind")
     if kind not in ("cone", "plate"):
         problems.append(f"kind = {shown(kind)}: allowed: 'cone' or 'plate'" if kind is not None
@@ -220,6 +232,8 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
             for full in (*derived, "interface.inner_radius", "interface.outer_radius"):
                 values.pop(full, None)
         run_checks(RELATIONS, values, kind, problems, warnings)
+        curves = curve_points_of(curve_lists, values, kind, problems)
+        check_curves(curves, values, kind, problems, warnings)
     if problems:
         raise CaseError(problems)
     tables = {t: cls(**{k: values.get(f"{t}.{k}") for k in SCHEMA[t]}) for t, cls in _TABLE_CLASSES.items()}
@@ -228,7 +242,8 @@ def case_from_dict(data: dict, default_name: str = "case", sha256: str = "", sou
             tables[table] = None
     return Case(kind=kind, name=name, description=values.get("description") or "", input_sha256=sha256,
                 source=source, warnings=tuple(warnings), tables_given=given, section_file=spec,
-                section_file_sha256=spec_sha, **tables)
+                section_file_sha256=spec_sha, lining_curve_points=curves.get("lining_curve"),
+                cushion_points=curves.get("cushion"), **tables)
 
 
 def _flatten(data: dict, problems: list[str]) -> dict[str, Any]:
@@ -240,10 +255,11 @@ def _flatten(data: dict, problems: list[str]) -> dict[str, Any]:
                 problems.append(f"[{_key_text(key)}]: unknown table{_hint(key, tables)}; allowed tables: "
                                 + ", ".join([*tables, SECTION_TABLE]))
                 continue
+            allowed = [*CURVE_TABLES.get(key, ())[:2], *SCHEMA[key]]       # a curve's lists, then the keys
             for sub, subval in value.items():
                 if sub not in SCHEMA[key]:
-                    problems.append(f"{key}.{_key_text(sub)}: unknown key{_hint(sub, list(SCHEMA[key]), key)}; "
-                                    f"allowed in [{key}]: " + ", ".join(SCHEMA[key]))
+                    problems.append(f"{key}.{_key_text(sub)}: unknown key{_hint(sub, allowed, key)}; "
+                                    f"allowed in [{key}]: " + ", ".join(allowed))
                     continue
                 flat[f"{key}.{sub}"] = subval
         elif key in SCHEMA[""]:

@@ -144,7 +144,7 @@ FILM_RANGE = _closed(0.0, 20000.0, "0 = adiabatic (a bound); still air 2–25, f
                      "memory")
 # tables whose presence asks for an analysis: their keys are defaulted (and their table_required keys
 # required) only when the case gives the table; without it the case's attribute is None
-ANALYSIS_TABLES = ("engagement", "speed", "splines")
+ANALYSIS_TABLES = ("engagement", "speed", "splines", "lining_curve", "cushion")
 
 CONE = ("cone",)
 PLATE = ("plate",)
@@ -599,6 +599,23 @@ SCHEMA: dict[str, dict[str, Key]] = {
                ("disc", "friction discs", "disc", "core_inner_radius", "core_outer_radius"),
                ("separator", "separator plates", "separator_plate", "inner_radius", "outer_radius"),
                ("pressure_plate", "pressure plate", "pressure_plate", "inner_radius", "outer_radius"))},
+    },
+    # the tables of the measured compression curves: their point lists (deflection, pressure or force) are read
+    # by clutchfe.curve_case (lists, not single values); the scale here lets a study vary the curve as a whole
+    "lining_curve": {
+        "deflection_scale": Key("", "factor on every deflection of the lining's compression curve (the table "
+                                "gives the lining by its measured curve: lists deflection (mm) and pressure "
+                                "(MPa); the scale lets a study vary the curve within its tolerance)", default=1.0,
+                                **_closed(0.5, 2.0, "compression curves of one facing grade scatter by about "
+                                          "±20–30 % between batches (from memory); outside half to twice it is "
+                                          "another material")),
+    },
+    "cushion": {
+        "deflection_scale": Key("", "factor on every deflection of the cushion's force–deflection curve (the "
+                                "table gives the cushion springs between the two facings of each disc: lists "
+                                "deflection (mm) and force (N))", default=1.0, kinds=("plate",),
+                                **_closed(0.5, 2.0, "cushion springs of one part number scatter by about ±20 % "
+                                          "in travel (from memory); outside half to twice it is another part")),
     },
     "verification": {
         "mesh_study": Key("", "solve on three meshes (refinement ratio below) and report observed order, "

@@ -46,6 +46,7 @@ from hypothesis import HealthCheck, Phase, find, given, settings
 from hypothesis import strategies as st
 
 from clutchfe._cli import main
+from clutchfe.curve_case import CURVE_TABLES
 from clutchfe.schema import SCHEMA
 from clutchfe.section_case import TABLE as SECTION_TABLE, TOP_KEYS as SECTION_KEYS
 
@@ -146,8 +147,11 @@ BASES: dict[str, dict] = {"CONE": CONE, "PLATE": PLATE, "SMALL_PLATE": SMALL_PLA
                           **{p.stem: _demo(p) for p in CASES}}
 TABLES = sorted(t for t in SCHEMA if t)
 SCHEMA_PATHS = sorted((t, k) for t, keys in SCHEMA.items() for k in keys)      # ("", "kind"), ("cone", …)
-# the [section_file] table is read by clutchfe.section_case, not the flat schema: its keys name lines too
-DOTTED_KEYS = sorted([f"{t}.{k}" for t, k in SCHEMA_PATHS if t] + [f"{SECTION_TABLE}.{k}" for k in SECTION_KEYS])
+# the [section_file] table is read by clutchfe.section_case, the curves' point lists by clutchfe.curve_case, not
+# the flat schema: their keys name lines too
+CURVE_KEYS = [f"{t}.{k}" for t, lists in CURVE_TABLES.items() for k in lists[:2]]
+DOTTED_KEYS = sorted([f"{t}.{k}" for t, k in SCHEMA_PATHS if t] + [f"{SECTION_TABLE}.{k}" for k in SECTION_KEYS]
+                     + CURVE_KEYS)
 TOP_KEYS = sorted(k for t, k in SCHEMA_PATHS if not t)
 CHOICES = sorted({c for keys in SCHEMA.values() for spec in keys.values()
                   for c in getattr(spec, "choices", ()) if isinstance(c, str)})

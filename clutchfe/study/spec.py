@@ -55,6 +55,9 @@ OUTPUTS = {
     "peak_pressure_at_speed_MPa": "peak contact pressure at the running speed",
     "torque_with_spline_drag_Nm": "FE torque capacity of the pack with spline drag ([splines] in the base case)",
     "pack_efficiency": "torque with spline drag over the pack without it",
+    "curve_nominal_deflection_mm": "deflection of a face's layer at W / A on the compression curve ([lining_curve] or "
+                                   "[cushion] in the base case)",
+    "torque_without_cushion_Nm": "torque of the same faces without the cushion springs ([cushion] in the base case)",
 }
 CORE_OUTPUTS = ("torque_fe_Nm", "capacity_position", "peak_pressure_MPa", "effective_radius_mm")
 TOP_KEYS = ("name", "description", "base_case", "method", "samples", "seed", "outputs", "vary", "limit")
@@ -286,6 +289,9 @@ def _unused_by_base(full: str, base: Case | None) -> str:
     if (table == "speed" or key in STRENGTH_KEYS) and base.speed is None:
         return ("only the speed analysis uses it and the base case has no [speed] table; allowed: add [speed] to "
                 "the base case")
+    if table in ("lining_curve", "cushion") and getattr(base, table) is None:
+        return (f"only the compression curves use it and the base case has no [{table}] table; allowed: add "
+                f"[{table}] to the base case")
     if table == "splines" and base.splines is None:
         return ("only the spline drag uses it and the base case has no [splines] table; allowed: add [splines] to "
                 "the base case")
