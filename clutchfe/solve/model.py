@@ -1,10 +1,46 @@
 """The FE stage's plain input built from a case's section and mesh."""
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from ..case import Case
-from ..fem import ContactPair, FaceLoad, FeModel, RingLoad, SpringSupport
+from ..fem import CompressionCurve, ContactPair, FaceLoad, FeModel, RingLoad, SpringSupport
+from ..schema import STEEL_E
+
+# With a measured compression curve the curve is the lining's whole compression (fem/compliant_layer.py): the
+# meshed lining keeps its place and carries the load as steel would, its own compression t / E then some 1e-4 of
+# the curve's (docs/compression-curves.md).
+CURVE_CARRIER_MODULUS = STEEL_E
+
+
+def has_compression_curve(case: Case) -> bool:
+    return case.lining_curve_points is not None or case.cushion_points is not None
+
+
+def layer_curves_of(case: Case, section) -> list[CompressionCurve] | None:
+    """The compliant layer of every friction interface (each carries one lining), or None without a curve.
+
+    The lining's curve is scaled by its deflection_scale; the cushion's force F on the whole disc is the pressure
+    F / A on its facing (A the friction face's area), and each of the disc's two faces takes half its deflection
+    (the cushion sits between them, in series with both linings); past its last point the cushion is flat.
+    """
+    if not has_compression_curve(case):
+        return None
+    curve = None
+    lining = case.lining_curve_points
+    if lining is not None:
+        curve = CompressionCurve(np.array(lining.deflection_mm) * case.lining_curve.deflection_scale,
+                                 np.array(lining.values))
+    if case.cushion_points is not None:
+        r1, r2 = case.interface.inner_radius, case.interface.outer_radius
+        area = math.pi * (r2 ** 2 - r1 ** 2)
+        # past its last point a cushion is pressed flat: solid
+        cushion = CompressionCurve(np.array(case.cushion_points.deflection_mm) * case.cushion.deflection_scale * 0.5,
+                                   np.array(case.cushion_points.values) / area, solid_past_last=True)
+        curve = cushion if curve is None else curve.in_series(cushion)
+    return [curve for _ in section.interfaces]
 
 
 def fe_model_of(case: Case, section, mesh, axial_force_N: float | None = None, gaps: bool = True) -> FeModel:
@@ -17,7 +53,8 @@ def fe_model_of(case: Case, section, mesh, axial_force_N: float | None = None, g
     regions = {reg.name: reg for reg in section.regions}
     body_index = {b.name: k for k, b in enumerate(section.bodies)}
     by_region = np.array([body_index[regions[n].body] for n in mesh.region_names])
-    modulus = np.array([regions[n].youngs_modulus for n in mesh.region_names])
+    modulus = np.array([CURVE_CARRIER_MODULUS if regions[n].lining_layers and case.lining_curve_points is not None
+                        else regions[n].youngs_modulus for n in mesh.region_names])
     poisson = np.array([regions[n].poissons_ratio for n in mesh.region_names])
     sup = case.support
     springs = sup.type == "springs"

@@ -26,7 +26,7 @@ from ..errors import PhysicsError
 from ..fem import ContactError, ContactSolver, FeModel, FeResult
 from ..fem.tilted import TiltedContactSolver, TiltedResult
 from ..geometry import Section, SectionMesh, build_section, mesh_section
-from .model import fe_model_of
+from .model import fe_model_of, layer_curves_of
 
 # The prepared model's force: any positive value serves (the solve is linear in the load
 # at fixed contact); a fixed one keeps results independent of the order samples come in.
@@ -38,7 +38,7 @@ REFERENCE_FORCE = 1000.0        # N
 # read against its stresses).
 SOLVE_PARAMETERS = ("name", "description", "interface.friction_coefficient", "load.axial_force",
                     "lining.allowable_pressure", "misalignment.", "requirement.", "wear.", "verification.",
-                    "engagement.", "cooling.", "splines.", "*.thermal_conductivity", "*.density", "*.specific_heat",
+                    "engagement.", "cooling.", "splines.", "lining_curve.", "cushion.", "*.thermal_conductivity", "*.density", "*.specific_heat",
                     "*.expansion_coefficient", "speed.", "*.yield_strength", "*.tensile_strength")
 # Prepared models kept; one of the default demo is a few MB (a tilted one tens of MB).
 CACHE_SIZE = 4
@@ -48,6 +48,8 @@ GUIDANCE_CHOICES = ("held", "self_aligning")
 def stiffness_key(case: Case) -> str:
     """Cases with the same key share a mesh and a stiffness: one prepared model serves them."""
     fixed = {k: v for k, v in case.flat().items() if not any(_solve_parameter(k, p) for p in SOLVE_PARAMETERS)}
+    # a measured lining curve makes the meshed lining a stiff carrier (solve/model.py); its points do not matter
+    fixed["lining curve"] = case.lining_curve_points is not None
     return hashlib.sha256(json.dumps(fixed, sort_keys=True, default=str).encode()).hexdigest()[:16]
 
 
@@ -105,6 +107,8 @@ class SolvedCase:
     fe: FeResult                    # axisymmetric result; for a tilted case the θ-summed rings
     tilted: TiltedResult | None = None      # the (r, θ) result of a tilted or offset case
     guidance: str = "held"
+    # the compliant layer of every interface (fem.CompressionCurve) when the case gives a compression curve
+    layers: list | None = None
 
     @property
     def mesh(self) -> SectionMesh:
@@ -178,11 +182,12 @@ class SolveService:
         try:
             if is_tilted(case) if on_grid is None else on_grid:
                 return self._solve_tilted(case, section, prepared, gaps, scale)
-            fe = prepared.solver.solve(gaps=gaps, load_scale=scale, fields=fields)
+            layers = layer_curves_of(case, section)
+            fe = prepared.solver.solve(gaps=gaps, load_scale=scale, fields=fields, layers=layers)
         except ContactError as exc:
             raise PhysicsError(str(exc)) from None
         self.solves += 1
-        return SolvedCase(case, section, prepared, tuple(gaps), scale, fe)
+        return SolvedCase(case, section, prepared, tuple(gaps), scale, fe, layers=layers)
 
     def _solve_tilted(self, case, section, prepared, gaps, scale) -> SolvedCase:
         mis = case.misalignment
