@@ -36,6 +36,7 @@ if TYPE_CHECKING:       # the types only; the stages themselves where they run (
     from .analyses.engagement import EngagementRun
     from .analyses.speed import SpeedResult
     from .analyses.pack import PackResult
+    from .analyses.compression import CompressionResult
     from .solve import SolvedCase, SolveService
     from .verification import TableOrigin
 
@@ -52,6 +53,7 @@ class CaseResult:
     engagement: EngagementRun | None = None     # the case has an [engagement] table (hot engagement)
     speed: SpeedResult | None = None            # the case has a [speed] table (running speed)
     pack: PackResult | None = None              # the case has a [splines] table (spline drag of the pack)
+    compression: CompressionResult | None = None    # the case gives a [lining_curve] or a [cushion]
 
     @property
     def case(self) -> Case:
@@ -99,6 +101,10 @@ def wants_speed(case: Case) -> bool:
 
 def wants_pack(case: Case) -> bool:
     return "splines" in case.tables_given
+
+
+def wants_compression(case: Case) -> bool:
+    return case.lining_curve_points is not None or case.cushion_points is not None
 
 
 def analyse(case: Case, service: SolveService | None = None, fields: bool = True, progress=None) -> CaseResult:
@@ -164,7 +170,12 @@ def analyse(case: Case, service: SolveService | None = None, fields: bool = True
         from .analyses.pack import pack_of_case     # start-up (module docstring)
         step("spline drag of the pack")
         pack = pack_of_case(solved, hand)
-    return CaseResult(solved, hand, comparison, tilt, wear, engagement, speed, pack)
+    compression = None
+    if wants_compression(case):
+        from .analyses.compression import compression_of_case     # start-up (module docstring)
+        step("operating point on the compression curve")
+        compression = compression_of_case(solved, hand, comparison.torque_fe_Nm)
+    return CaseResult(solved, hand, comparison, tilt, wear, engagement, speed, pack, compression)
 
 
 def gather_evidence(result: CaseResult, service: SolveService, progress=None) -> Evidence:
@@ -289,7 +300,8 @@ def run_case(case: Case, folder: Path, console, service: SolveService | None = N
 
     service = service if service is not None else SolveService()
     with Progress(transient=True, console=console) as progress:
-        step = _Steps(progress, total=8 + wants_engagement(case) + wants_speed(case) + wants_pack(case), listener=on_step)
+        step = _Steps(progress, total=8 + wants_engagement(case) + wants_speed(case) + wants_pack(case)
+                      + wants_compression(case), listener=on_step)
         service.prepare(case)
         result = analyse(case, service, progress=step)
         evidence = gather_evidence(result, service, progress=step)
@@ -315,6 +327,9 @@ def run_case(case: Case, folder: Path, console, service: SolveService | None = N
     if result.pack is not None:
         from .analyses.pack import pack_table       # start-up (module docstring)
         extra_tables.append(pack_table(summary))
+    if result.compression is not None:
+        from .analyses.compression import compression_table     # start-up (module docstring)
+        extra_tables.append(compression_table(summary))
     print_table(console, case, summary, folder, extra_tables=extra_tables)
     return summary
 
@@ -337,6 +352,9 @@ def report_sections(result: CaseResult, summary: dict, folder: Path) -> dict:
     if result.pack is not None:
         from .analyses.pack.report import pack_section      # start-up (module docstring)
         sections["pack"] = pack_section(summary, folder, summary.get("pack_warnings", []))
+    if result.compression is not None:
+        from .analyses.compression.report import compression_section    # start-up (module docstring)
+        sections["compression"] = compression_section(summary, folder, summary.get("curve_warnings", []))
     return sections
 
 
@@ -360,6 +378,9 @@ def write_case_files(result: CaseResult, folder: Path) -> None:
     if result.pack is not None:
         from .analyses.pack import write_pack_files     # start-up (module docstring)
         write_pack_files(result.pack, result.case, result.hand, folder)
+    if result.compression is not None:
+        from .analyses.compression import write_compression_files     # start-up (module docstring)
+        write_compression_files(result.compression, solved.fe, result.hand, folder)
 
 
 def _run_verdict(summary: dict, result: CaseResult, evidence: Evidence | None) -> None:
@@ -385,6 +406,9 @@ def _run_verdict(summary: dict, result: CaseResult, evidence: Evidence | None) -
     if result.pack is not None:
         verdict += [f"Spline drag: {w}" for w in summary.get("pack_warnings", [])]
         failed += [name for name in summary.get("pack_failed", []) if name not in failed]
+    if result.compression is not None:
+        verdict += [f"Compression curve: {w}" for w in summary.get("curve_warnings", [])]
+        failed += [name for name in summary.get("curve_failed", []) if name not in failed]
     study = evidence.mesh_study if evidence is not None else {}
     if study and not study.get("skipped") and not study.get("converged", True):
         failed.append("mesh convergence")
@@ -458,6 +482,11 @@ def summary_of(result: CaseResult, evidence: Evidence | None = None) -> dict:
         from .analyses.pack import pack_summary     # start-up (module docstring)
         keys = pack_summary(result.pack, case, result.hand)
         summary["warnings"] += [w for w in keys["pack_warnings"] if w.startswith("WARNING")]
+        summary.update(keys)
+    if result.compression is not None:
+        from .analyses.compression import compression_summary     # start-up (module docstring)
+        keys = compression_summary(result.compression, case)
+        summary["warnings"] += [w for w in keys["curve_warnings"] if w.startswith("WARNING")]
         summary.update(keys)
     summary["versions"] = versions()
     summary["caution"] = CAUTION

@@ -15,13 +15,14 @@ from dataclasses import dataclass
 
 from .readme import write_between_markers
 
-STAGES = ("case", "solve", "comparison", "tilt", "wear-in", "engagement", "speed", "spline drag", "evidence",
-          "report", "provenance")
+STAGES = ("case", "solve", "comparison", "tilt", "wear-in", "engagement", "speed", "spline drag",
+          "compression curve", "evidence", "report", "provenance")
 
 # the stages whose keys are there only when the case asks for that analysis (the README says so)
 OPTIONAL_STAGES = {"tilt": "a case with an axis tilt or a radial offset", "wear-in": "a case with a [wear] table",
                    "engagement": "a case with an [engagement] table", "speed": "a case with a [speed] table",
-                   "spline drag": "a case with a [splines] table"}
+                   "spline drag": "a case with a [splines] table",
+                   "compression curve": "a case with a [lining_curve] or a [cushion] table"}
 
 MARKERS = ("<!-- summary keys: start -->", "<!-- summary keys: end -->")
 
@@ -270,6 +271,37 @@ SUMMARY_KEYS: tuple[SummaryKey, ...] = (
                               "spline_force_N (tangential, T / R_s), spline_drag_N (axial), gain (μ_s μ R_up / R_s)"),
         ("pack_warnings", "", "what the spline drag found (its WARNING lines also in warnings)"),
         ("pack_failed", "", "the failed criteria with spline drag (also in failed_criteria)"),
+    )),
+    *_k("compression curve", False, (
+        ("curve_nominal_pressure_MPa", "MPa", "the faces' normal force over their area (W / A on a plate): the "
+                                              "nominal point on the curve"),
+        ("curve_nominal_deflection_mm", "mm", "the layer's deflection at the nominal pressure (the lining, and half "
+                                              "the cushion, per face)"),
+        ("lining_deflection_at_nominal_mm", "mm", "the lining's own deflection there (null without [lining_curve])"),
+        ("cushion_deflection_at_nominal_mm", "mm", "the cushion's whole deflection between a disc's facings there "
+                                                   "(null without [cushion])"),
+        ("curve_tangent_stiffness_at_nominal_MPa_per_mm", "MPa/mm", "the layer curve's slope dp/dd at the nominal "
+                                                                   "point"),
+        ("curve_secant_stiffness_at_nominal_MPa_per_mm", "MPa/mm", "nominal pressure over nominal deflection (the "
+                                                                  "straight layer compared with)"),
+        ("curve_last_measured_pressure_MPa", "MPa", "the highest pressure the lining's curve was measured to (past it: "
+                                                   "its last slope; null without [lining_curve])"),
+        ("pressure_beyond_curve", "", "true when the peak pressure runs past the last measured point (a failed "
+                                      "criterion)"),
+        ("cushion_flat_share", "", "share of the faces' area where the cushion is pressed flat, past its last point "
+                                   "(null without [cushion])"),
+        ("torque_with_secant_layer_Nm", "N·m", "the same case with a straight layer through the nominal point (a "
+                                               "linear lining of the same compression at W / A)"),
+        ("capacity_position_with_secant_layer", "", "ξ with that straight layer"),
+        ("peak_pressure_with_secant_layer_MPa", "MPa", "peak pressure with that straight layer"),
+        ("torque_without_cushion_Nm", "N·m", "the same faces without the cushion springs (null without [cushion])"),
+        ("capacity_position_without_cushion", "", "ξ without the cushion springs (null without [cushion])"),
+        ("peak_pressure_without_cushion_MPa", "MPa", "peak pressure without the cushion springs (null without "
+                                                    "[cushion])"),
+        ("curve_faces", "", "per friction face: interface, mean_pressure_MPa, least_pressure_MPa, peak_pressure_MPa, "
+                            "mean_deflection_mm, peak_deflection_mm, tangent_stiffness_MPa_per_mm, closed_share"),
+        ("curve_warnings", "", "what the compression curves found (its WARNING lines also in warnings)"),
+        ("curve_failed", "", "the failed criteria of the compression curves (also in failed_criteria)"),
     )),
     *_k("provenance", True, (
         ("version", "", "clutchfe version that wrote the file"),

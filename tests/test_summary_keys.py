@@ -22,7 +22,7 @@ from clutchfe.summary_keys import (BY_KEY, MARKERS, OPTIONAL_STAGES, STAGES, SUM
 from tests.helpers.data import ROOT, SMALL_PLATE, with_tables
 
 # the unit each name ending stands for (longest ending first: _mm3 before _mm, _Nm before _N)
-NAME_UNITS = (("_mm3_per_N_m", "mm³/(N·m)"), ("_mm3", "mm³"), ("_mm", "mm"), ("_C", "°C"), ("_K", "K"), ("_rpm", "rpm"), ("_J", "J"), ("_s", "s"), ("_Nm", "N·m"), ("_N", "N"),
+NAME_UNITS = (("_mm3_per_N_m", "mm³/(N·m)"), ("_MPa_per_mm", "MPa/mm"), ("_mm3", "mm³"), ("_mm", "mm"), ("_C", "°C"), ("_K", "K"), ("_rpm", "rpm"), ("_J", "J"), ("_s", "s"), ("_Nm", "N·m"), ("_N", "N"),
               ("_MPa", "MPa"), ("_deg", "deg"), ("_percent", "%"), ("_rad", "rad"), ("_seconds", "s"))
 
 CASES = {
@@ -37,6 +37,8 @@ CASES = {
                                                     "driven_inertia": 0.05}),
     "spinning": with_tables(SMALL_PLATE, speed={"running_speed": 3000.0}),
     "splined": with_tables(SMALL_PLATE, splines={"friction_coefficient": 0.1}),
+    "curved": with_tables(SMALL_PLATE, lining_curve={"deflection": [0.01, 0.03], "pressure": [0.1, 0.5]},
+                          cushion={"deflection": [0.2, 0.4], "force": [1500.0, 5000.0]}),
 }
 
 

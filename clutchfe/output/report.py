@@ -13,7 +13,7 @@ from ..verification.table import format_error, format_tolerance
 from .report_html import data_uri, render
 
 # tables whose keys only matter when the case asks for that analysis
-OPTIONAL_TABLES = ("wear", "engagement", "cooling", "speed", "splines")
+OPTIONAL_TABLES = ("wear", "engagement", "cooling", "speed", "splines", "lining_curve", "cushion")
 # keys of every material that only the hot engagement uses
 THERMAL_LEAVES = ("thermal_conductivity", "density", "specific_heat", "expansion_coefficient")
 # keys of every material that only the speed analysis uses (with the density)
@@ -61,6 +61,10 @@ ANALYSIS_ASSUMPTIONS = {
              "(the apply stroke), as an axial load on the splined edge, iterated with the contact pressure to a "
              "fixed point; compared with the closed form of a pack of rigid plates.",
              "No spline friction in this solve: every surface of a pack carries the whole clamp force."),
+    "compression": ("Lining and cushion by their measured compression curves: a layer of independent springs "
+                    "(Winkler foundation) between the bodies following the curve point by point, the meshed lining a "
+                    "stiff carrier; past the last measured point the curve goes on with its last slope.",
+                    "Linear elastic lining (Young's modulus and Poisson's ratio), no cushion springs."),
 }
 
 
