@@ -22,7 +22,7 @@ to it is damped (halved until f decreases: the Armijo rule, Nocedal & Wright, Nu
 §3.1).  A feasible λ stays feasible along the step (λ ≥ 0 and the balance are convex), so the damping never
 leaves the problem.  The curve is piecewise linear, so once every node's segment of the curve stops
 changing the tangent problem is the problem itself and the step is exact: the method ends in finitely many
-steps, usually two to five.
+steps (two to six on the demo and test cases).
 
 A straight curve p = k d is the linear layer, C + diag(1 / (k A)) in one linear solve (the first step is the
 answer).
