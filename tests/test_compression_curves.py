@@ -125,7 +125,7 @@ def test_rigid_stack_lands_on_the_curve_and_the_scale_stretches_it():
     solved = SolveService().solve(case, fields=False)
     area = math.pi * (case.interface.outer_radius ** 2 - case.interface.inner_radius ** 2)
     p = case.load.axial_force / area
-    d = float(solved.layers[0].deflection(p))
+    d = float(solved.layer_curves.face.deflection(p))
     for itf in solved.fe.interfaces:
         assert np.max(np.abs(itf.pressure / p - 1.0)) <= 0.02       # the bodies' own bending, 700 GPa
         assert abs(float(np.mean(itf.layer_deflection)) / d - 1.0) <= 0.02

@@ -2,6 +2,7 @@
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -19,28 +20,41 @@ def has_compression_curve(case: Case) -> bool:
     return case.lining_curve_points is not None or case.cushion_points is not None
 
 
-def layer_curves_of(case: Case, section) -> list[CompressionCurve] | None:
-    """The compliant layer of every friction interface (each carries one lining), or None without a curve.
+@dataclass(frozen=True)
+class LayerCurves:
+    """The measured curves of a case as the solve uses them (MPa against mm).
 
-    The lining's curve is scaled by its deflection_scale; the cushion's force F on the whole disc is the pressure
-    F / A on its facing (A the friction face's area), and each of the disc's two faces takes half its deflection
-    (the cushion sits between them, in series with both linings); past its last point the cushion is flat.
-    """
+    ``lining``: the lining's curve scaled by its deflection_scale; ``cushion``: the cushion's force F on the whole
+    disc as the pressure F / A on its facing (A the friction face's area) against the cushion's whole deflection,
+    flat (solid) past its last point."""
+
+    lining: CompressionCurve | None
+    cushion: CompressionCurve | None
+
+    @property
+    def face(self) -> CompressionCurve:
+        """The layer of one friction face: the lining in series with half the cushion (the cushion sits between the
+        disc's two facings, in series with both)."""
+        if self.cushion is None:
+            return self.lining
+        half = self.cushion.scaled(0.5)
+        return half if self.lining is None else self.lining.in_series(half)
+
+
+def layer_curves_of(case: Case) -> LayerCurves | None:
+    """The case's compression curves, or None without one."""
     if not has_compression_curve(case):
         return None
-    curve = None
-    lining = case.lining_curve_points
-    if lining is not None:
-        curve = CompressionCurve(np.array(lining.deflection_mm) * case.lining_curve.deflection_scale,
-                                 np.array(lining.values))
+    lining = cushion = None
+    if case.lining_curve_points is not None:
+        pts = case.lining_curve_points
+        lining = CompressionCurve(np.array(pts.deflection_mm) * case.lining_curve.deflection_scale, np.array(pts.values))
     if case.cushion_points is not None:
-        r1, r2 = case.interface.inner_radius, case.interface.outer_radius
-        area = math.pi * (r2 ** 2 - r1 ** 2)
-        # past its last point a cushion is pressed flat: solid
-        cushion = CompressionCurve(np.array(case.cushion_points.deflection_mm) * case.cushion.deflection_scale * 0.5,
-                                   np.array(case.cushion_points.values) / area, solid_past_last=True)
-        curve = cushion if curve is None else curve.in_series(cushion)
-    return [curve for _ in section.interfaces]
+        pts = case.cushion_points
+        area = math.pi * (case.interface.outer_radius ** 2 - case.interface.inner_radius ** 2)
+        cushion = CompressionCurve(np.array(pts.deflection_mm) * case.cushion.deflection_scale,
+                                   np.array(pts.values) / area, solid_past_last=True)
+    return LayerCurves(lining, cushion)
 
 
 def fe_model_of(case: Case, section, mesh, axial_force_N: float | None = None, gaps: bool = True) -> FeModel:

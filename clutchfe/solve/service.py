@@ -26,7 +26,7 @@ from ..errors import PhysicsError
 from ..fem import ContactError, ContactSolver, FeModel, FeResult
 from ..fem.tilted import TiltedContactSolver, TiltedResult
 from ..geometry import Section, SectionMesh, build_section, mesh_section
-from .model import fe_model_of, layer_curves_of
+from .model import LayerCurves, fe_model_of, layer_curves_of
 
 # The prepared model's force: any positive value serves (the solve is linear in the load
 # at fixed contact); a fixed one keeps results independent of the order samples come in.
@@ -107,8 +107,8 @@ class SolvedCase:
     fe: FeResult                    # axisymmetric result; for a tilted case the θ-summed rings
     tilted: TiltedResult | None = None      # the (r, θ) result of a tilted or offset case
     guidance: str = "held"
-    # the compliant layer of every interface (fem.CompressionCurve) when the case gives a compression curve
-    layers: list | None = None
+    # the measured compression curves the solve carried (a layer on every face), None without one
+    layer_curves: LayerCurves | None = None
 
     @property
     def mesh(self) -> SectionMesh:
@@ -182,12 +182,14 @@ class SolveService:
         try:
             if is_tilted(case) if on_grid is None else on_grid:
                 return self._solve_tilted(case, section, prepared, gaps, scale)
-            layers = layer_curves_of(case, section)
+            curves = layer_curves_of(case)
+            # every friction face carries one lining (the parametric sections), so one layer each
+            layers = None if curves is None else [curves.face] * len(section.interfaces)
             fe = prepared.solver.solve(gaps=gaps, load_scale=scale, fields=fields, layers=layers)
         except ContactError as exc:
             raise PhysicsError(str(exc)) from None
         self.solves += 1
-        return SolvedCase(case, section, prepared, tuple(gaps), scale, fe, layers=layers)
+        return SolvedCase(case, section, prepared, tuple(gaps), scale, fe, layer_curves=curves)
 
     def _solve_tilted(self, case, section, prepared, gaps, scale) -> SolvedCase:
         mis = case.misalignment

@@ -70,19 +70,6 @@ class CompressionResult:
         return flat / sum(float(np.sum(i.tributary_area)) for i in self.fe_interfaces)
 
 
-def _lining_and_cushion(case, layer_area_mm2: float):
-    lining = cushion = None
-    if case.lining_curve_points is not None:
-        pts = case.lining_curve_points
-        lining = CompressionCurve(np.array(pts.deflection_mm) * case.lining_curve.deflection_scale,
-                                  np.array(pts.values))
-    if case.cushion_points is not None:
-        pts = case.cushion_points
-        cushion = CompressionCurve(np.array(pts.deflection_mm) * case.cushion.deflection_scale,
-                                   np.array(pts.values) / layer_area_mm2, solid_past_last=True)
-    return lining, cushion
-
-
 def face_point(itf, layer: CompressionCurve) -> FacePoint:
     closed = itf.in_contact & (itf.tributary_area > 0)
     area = itf.tributary_area
@@ -94,13 +81,12 @@ def face_point(itf, layer: CompressionCurve) -> FacePoint:
 
 
 def compression_of_case(solved, hand: HandCapacity, torque_fe_Nm: float) -> CompressionResult:
-    """The solved case (``solve.SolvedCase`` with its layers) on its compression curves."""
-    case, fe = solved.case, solved.fe
-    layer = solved.layers[0]
+    """The solved case (``solve.SolvedCase`` with its layer curves) on its compression curves."""
+    fe = solved.fe
+    curves = solved.layer_curves
+    layer, lining, cushion = curves.face, curves.lining, curves.cushion
     total_area = sum(float(np.sum(i.tributary_area)) for i in fe.interfaces)
     nominal = sum(float(np.sum(i.normal_force)) for i in fe.interfaces) / total_area
-    face_area = total_area / len(fe.interfaces)
-    lining, cushion = _lining_and_cushion(case, face_area)
     d_nominal = float(layer.deflection(nominal))
     straight = CompressionCurve.straight(nominal / d_nominal, up_to_MPa=nominal)
     secant = _solve(solved, [straight] * len(fe.interfaces), "with the straight layer through the nominal point")
