@@ -13,7 +13,8 @@ lists, point by point from (0, 0) left out::
     force = [1200.0, 3000.0, 5600.0, 8500.0]    # N on the whole disc
 
 The lists are not single values, so they are read here (the way section_case.py reads its table), not by the
-key table; the tables' single keys (``deflection_scale``) are in the schema like every other key.  Each
+key table; the tables' single keys (the scales, ``deflection_scale`` and ``pressure_scale`` or ``force_scale``) are
+in the schema like every other key.  Each
 problem names the key, the value and what is allowed, as the other tables do.
 """
 from __future__ import annotations
@@ -116,21 +117,23 @@ def check_curves(curves: dict, v, kind: str, problems: list[str], warnings: list
     lining = curves.get("lining_curve")
     if lining is not None:
         scale = v.get("lining_curve.deflection_scale", 1.0)
+        p_scale = v.get("lining_curve.pressure_scale", 1.0)
         thickness = v.get("lining.thickness")
         last = lining.deflection_mm[-1] * scale
         if thickness is not None and last >= thickness:
             problems.append(f"lining_curve.deflection[{len(lining.deflection_mm) - 1}] = "
                             f"{lining.deflection_mm[-1]:g} (× deflection_scale {scale:g}): a lining cannot compress by "
                             f"its whole lining.thickness = {thickness:g} mm; allowed: below it")
-        if lining.values[-1] > CURVE_PRESSURE_MPA:
-            problems.append(f"lining_curve.pressure[{len(lining.values) - 1}] = {lining.values[-1]:g}: allowed: "
-                            f"value ≤ {CURVE_PRESSURE_MPA:g} MPa (an organic lining is crushed, a sintered one "
-                            "yields; pressures are in MPa)")
+        if lining.values[-1] * p_scale > CURVE_PRESSURE_MPA:
+            problems.append(f"lining_curve.pressure[{len(lining.values) - 1}] = {lining.values[-1]:g} (× pressure_scale "
+                            f"{p_scale:g}): allowed: value ≤ {CURVE_PRESSURE_MPA:g} MPa (an organic lining is crushed, "
+                            "a sintered one yields; pressures are in MPa)")
         if thickness is not None:
-            _secant_modulus(lining, thickness, scale, problems)
+            _secant_modulus(lining, thickness, scale / p_scale, problems)
     cushion = curves.get("cushion")
     if cushion is not None:
         scale = v.get("cushion.deflection_scale", 1.0)
+        f_scale = v.get("cushion.force_scale", 1.0)
         if cushion.deflection_mm[-1] * scale > CUSHION_TRAVEL_MM:
             problems.append(f"cushion.deflection[{len(cushion.deflection_mm) - 1}] = {cushion.deflection_mm[-1]:g} "
                             f"(× deflection_scale {scale:g}): allowed: at most {CUSHION_TRAVEL_MM:g} mm (cushion "
@@ -138,10 +141,11 @@ def check_curves(curves: dict, v, kind: str, problems: list[str], warnings: list
         r1, r2 = v.get("interface.inner_radius"), v.get("interface.outer_radius")
         if r1 is not None and r2 is not None and r2 > r1:
             area = math.pi * (r2 ** 2 - r1 ** 2)
-            if cushion.values[-1] / area > CURVE_PRESSURE_MPA:
-                problems.append(f"cushion.force[{len(cushion.values) - 1}] = {cushion.values[-1]:g}: on the facing "
-                                f"of {area:.4g} mm² that is {cushion.values[-1] / area:.3g} MPa; allowed: at most "
-                                f"{CURVE_PRESSURE_MPA * area:.4g} N ({CURVE_PRESSURE_MPA:g} MPa; forces are in N)")
+            if cushion.values[-1] * f_scale / area > CURVE_PRESSURE_MPA:
+                problems.append(f"cushion.force[{len(cushion.values) - 1}] = {cushion.values[-1]:g} (× force_scale "
+                                f"{f_scale:g}): on the facing of {area:.4g} mm² that is "
+                                f"{cushion.values[-1] * f_scale / area:.3g} MPa; allowed: at most "
+                                f"{CURVE_PRESSURE_MPA * area / f_scale:.4g} N ({CURVE_PRESSURE_MPA:g} MPa; forces are in N)")
 
 
 def check_curve_model(curves: dict, v, kind: str, problems: list[str]) -> None:
@@ -167,7 +171,8 @@ def check_curve_model(curves: dict, v, kind: str, problems: list[str]) -> None:
 
 
 def _secant_modulus(curve: CurvePoints, thickness: float, scale: float, problems: list[str]) -> None:
-    """p t / d at every point is the lining's secant modulus: it must be a lining's (the key table's range)."""
+    """p t / d at every point is the lining's secant modulus: it must be a lining's (the key table's range);
+    ``scale``: the deflection scale over the pressure scale."""
     spec = SCHEMA["lining"]["youngs_modulus"]
     for k, (d, p) in enumerate(zip(curve.deflection_mm, curve.values)):
         modulus = p * thickness / (d * scale)

@@ -609,6 +609,9 @@ SCHEMA: dict[str, dict[str, Key]] = {
                                 **_closed(0.5, 2.0, "compression curves of one facing grade scatter by about "
                                           "±20–30 % between batches (from memory); outside half to twice it is "
                                           "another material")),
+        "pressure_scale": Key("", "factor on every pressure of the lining's compression curve (with "
+                              "deflection_scale a study varies the curve along both axes)", default=1.0,
+                              **_closed(0.5, 2.0, "as deflection_scale")),
     },
     "cushion": {
         "deflection_scale": Key("", "factor on every deflection of the cushion's force–deflection curve (the "
@@ -616,6 +619,9 @@ SCHEMA: dict[str, dict[str, Key]] = {
                                 "deflection (mm) and force (N))", default=1.0, kinds=("plate",),
                                 **_closed(0.5, 2.0, "cushion springs of one part number scatter by about ±20 % "
                                           "in travel (from memory); outside half to twice it is another part")),
+        "force_scale": Key("", "factor on every force of the cushion's curve (with deflection_scale a study varies "
+                           "the curve along both axes)", default=1.0, kinds=("plate",),
+                           **_closed(0.5, 2.0, "as deflection_scale")),
     },
     "verification": {
         "mesh_study": Key("", "solve on three meshes (refinement ratio below) and report observed order, "

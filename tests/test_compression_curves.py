@@ -14,10 +14,11 @@ import pytest
 from clutchfe.case import case_from_dict, with_tables
 from clutchfe.comparison import compare_solved, hand_of
 from clutchfe.plan import analyse, summary_of
+from clutchfe.schema import SCHEMA
 from clutchfe.solve import SolveService, stiffness_key
 from clutchfe.study.spec import study_from_dict
 
-from tests.helpers.case_checks import check_answer, problems_of
+from tests.helpers.case_checks import check_answer, outside, problems_of
 from tests.helpers.data import CONE, PLATE, write_toml
 
 CURVE = {"deflection": [0.01, 0.025, 0.04, 0.05], "pressure": [0.05, 0.2, 0.5, 0.8]}
@@ -82,11 +83,29 @@ def test_the_points_leave_the_stiffness_group_alone_but_a_curve_does_not():
         stiffness_key(case_from_dict(with_tables(PLATE, **QUICK)))
 
 
-def test_a_study_can_vary_the_curves_scales(tmp_path):
+def test_a_study_can_vary_the_curves_along_both_axes(tmp_path):
     base = write_toml(tmp_path / "lined.toml", CUSHIONED)
-    vary = [{"key": f"{t}.deflection_scale", "values": [0.8, 1.2]} for t in ("lining_curve", "cushion")]
+    keys = [f"{t}.{k}" for t in ("lining_curve", "cushion") for k in SCHEMA[t]]
+    vary = [{"key": key, "values": [0.8, 1.2]} for key in keys]
     study = study_from_dict({"name": "s", "base_case": base.name, "vary": vary}, tmp_path / "s.study.toml")
-    assert sorted(g.key for g in study.grids) == ["cushion.deflection_scale", "lining_curve.deflection_scale"]
+    assert sorted(g.key for g in study.grids) == sorted(keys) and len(keys) == 4
+
+
+def test_the_scales_stretch_the_curves_the_solve_uses():
+    case = case_from_dict(with_tables(CUSHIONED, lining_curve={**CURVE, "deflection_scale": 1.5, "pressure_scale": 0.8},
+                                      cushion={**CUSHION, "force_scale": 1.25}))
+    curves = SolveService().solve(case, fields=False).layer_curves
+    assert np.allclose(curves.lining.deflection_mm[1:], 1.5 * np.array(CURVE["deflection"]), rtol=1e-15, atol=0)
+    assert np.allclose(curves.lining.pressure_MPa[1:], 0.8 * np.array(CURVE["pressure"]), rtol=1e-15, atol=0)
+    area = math.pi * (120.0 ** 2 - 80.0 ** 2)
+    assert np.allclose(curves.cushion.pressure_MPa[1:] * area, 1.25 * np.array(CUSHION["force"]), rtol=1e-12, atol=0)
+
+
+@pytest.mark.parametrize("table, key", [(t, k) for t in ("lining_curve", "cushion") for k in SCHEMA[t]])
+def test_out_of_range_scale_exits_2_naming_it(tmp_path, capsys, table, key):
+    value = outside(SCHEMA[table][key])
+    code, err = check_answer(tmp_path, capsys, with_tables(CUSHIONED, **{table: {key: value}}))
+    assert code == 2 and f"{table}.{key} = {value:g}" in err and "allowed" in err and "Traceback" not in err
 
 
 # --- the case-level solve -----------------------------------------------------------------------------------------

@@ -24,8 +24,8 @@ def has_compression_curve(case: Case) -> bool:
 class LayerCurves:
     """The measured curves of a case as the solve uses them (MPa against mm).
 
-    ``lining``: the lining's curve scaled by its deflection_scale; ``cushion``: the cushion's force F on the whole
-    disc as the pressure F / A on its facing (A the friction face's area) against the cushion's whole deflection,
+    ``lining``: the lining's curve scaled by its deflection_scale and pressure_scale; ``cushion``: the cushion's force F on the whole
+    disc (× force_scale) as the pressure F / A on its facing (A the friction face's area) against the cushion's whole deflection,
     flat (solid) past its last point."""
 
     lining: CompressionCurve | None
@@ -48,12 +48,13 @@ def layer_curves_of(case: Case) -> LayerCurves | None:
     lining = cushion = None
     if case.lining_curve_points is not None:
         pts = case.lining_curve_points
-        lining = CompressionCurve(np.array(pts.deflection_mm) * case.lining_curve.deflection_scale, np.array(pts.values))
+        lining = CompressionCurve(np.array(pts.deflection_mm) * case.lining_curve.deflection_scale,
+                                  np.array(pts.values) * case.lining_curve.pressure_scale)
     if case.cushion_points is not None:
         pts = case.cushion_points
         area = math.pi * (case.interface.outer_radius ** 2 - case.interface.inner_radius ** 2)
         cushion = CompressionCurve(np.array(pts.deflection_mm) * case.cushion.deflection_scale,
-                                   np.array(pts.values) / area, solid_past_last=True)
+                                   np.array(pts.values) * case.cushion.force_scale / area, solid_past_last=True)
     return LayerCurves(lining, cushion)
 
 
