@@ -33,8 +33,9 @@ CUSHION_TRAVEL_MM = 3.0
 # Pressures a curve may reach: linings are rated up to ~3.5 MPa, sintered ~10 (from memory); a measured curve
 # runs past the rating, but not past 50 MPa, where an organic lining is crushed and a sintered one yields.
 CURVE_PRESSURE_MPA = 50.0
-# The tables need the parametric section's linings and the axisymmetric solve; see check_curve_model.
-OTHER_ANALYSES = ("engagement", "wear", "speed", "splines")
+# The tables need the parametric section's linings and the axisymmetric solve; see check_curve_model.  The
+# spline drag carries the layer (its solves are the case's own with a body load); these analyses do not.
+OTHER_ANALYSES = ("engagement", "wear", "speed")
 
 
 @dataclass(frozen=True)

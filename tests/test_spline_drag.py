@@ -186,3 +186,22 @@ def test_a_study_refuses_spline_keys_on_a_base_without_splines(tmp_path):
                          "vary": [{"key": "splines.friction_coefficient", "values": [0.1, 0.2]}]},
                         tmp_path / "s.study.toml")
     assert any("splines.friction_coefficient" in p and "no [splines] table" in p for p in exc.value.problems)
+
+
+def test_spline_drag_carries_a_measured_lining_curve():
+    # a wet pack's lining given by its curve: the drag's solves carry the same layer as the case's own solve, so
+    # μ_s = 0 is that solve to the last bit, and with friction every plate stays in balance (limit case; the
+    # balance of ASME J. Lubrication Technology 90 (1968) 65)
+    curve = {"deflection": [0.01, 0.03], "pressure": [0.1, 0.6]}
+    solved, pack = _pack(with_tables(PACK, lining_curve=curve, splines={"friction_coefficient": 0.0}))
+    assert solved.layer_curves is not None
+    for a, b in zip(pack.fe.interfaces, solved.fe.interfaces):
+        assert np.array_equal(a.normal_force, b.normal_force) and np.any(a.layer_deflection > 0)
+    solved, pack = _pack(with_tables(PACK, lining_curve=curve, splines={"friction_coefficient": 0.12}))
+    W = PACK["load"]["axial_force"]
+    forces = [W] + [s.axial_force_N for s in pack.surfaces]
+    for j, plate in enumerate(pack.plates):
+        drag = plate.friction_coefficient * 1000.0 * plate.torque_Nm / plate.pitch_radius_mm
+        assert abs(forces[j] - forces[j + 1] - drag) <= 1e-8 * W
+    assert pack.torque_Nm < pack.torque_without_drag_Nm
+    assert all(np.any(itf.layer_deflection > 0) for itf in pack.fe.interfaces)

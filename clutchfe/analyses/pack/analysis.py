@@ -85,8 +85,11 @@ def pack_of_case(solved, hand: HandCapacity) -> PackResult:
     rigid = rigid_pack_forces(W, gains)
     # start from the rigid pack's drags (what each plate holds back there): the elastic answer is close
     guess = -np.diff(np.concatenate([[W], rigid]))
+    # with a measured compression curve the pack carries it too (the case's own layer on every face)
+    curves = solved.layer_curves
+    layers = None if curves is None else [curves.face] * len(section.interfaces)
     run: DragSolve = solve_with_spline_drag(solved.solver, solved.gaps, solved.load_scale, plates, faces_of, mu, W,
-                                            first_guess=guess)
+                                            first_guess=guess, layers=layers)
     plate_rows = [PlateDrag(p.body, p.label, p.spline, p.pitch_radius_mm, p.friction_coefficient, t / 1000.0,
                             t / p.pitch_radius_mm, float(d), g)
                   for p, t, d, g in zip(plates, run.torque_Nmm, run.drag_N, gains)]

@@ -105,10 +105,11 @@ class DragSolve:
 
 
 def solve_with_spline_drag(solver, gaps, load_scale: float, plates, faces_of: dict, mu: float,
-                           clamp_force_N: float, first_guess=None, fields: bool = True) -> DragSolve:
+                           clamp_force_N: float, first_guess=None, fields: bool = True, layers=None) -> DragSolve:
     """The contact of the pack with the spline drag of every plate, iterated to the fixed point (module
     docstring).  ``faces_of``: body -> names of the friction interfaces it touches; ``first_guess``: the drag of
-    every plate to start from (N; the rigid-plate closed form is close), zero by default."""
+    every plate to start from (N; the rigid-plate closed form is close), zero by default; ``layers``: the
+    compliant layer of every interface (a measured compression curve, ContactSolver.solve), None for none."""
     system = solver.system
     # the drag opposes the closing motion, the pressed plate's load direction (-z in geometry.plates)
     closing = np.sign(float(np.sum(solver.e))) or -1.0
@@ -123,7 +124,7 @@ def solve_with_spline_drag(solver, gaps, load_scale: float, plates, faces_of: di
                                "on its splines")
         load = _drag_load(system, unit, drag)
         try:
-            fe = solver.solve(list(gaps), load_scale, fields=False, body_load=load, start=start)
+            fe = solver.solve(list(gaps), load_scale, fields=False, body_load=load, start=start, layers=layers)
         except ContactError as exc:
             # a step that asks more drag than the pack can hold back: go half as far from the last state that
             # could be solved (under-relaxation, Kelley 1995, Iterative Methods for Linear and Nonlinear
@@ -140,7 +141,7 @@ def solve_with_spline_drag(solver, gaps, load_scale: float, plates, faces_of: di
         drag = good + step * (new - good)
     if fields:
         try:
-            fe = solver.solve(list(gaps), load_scale, fields=True, body_load=load, start=start)
+            fe = solver.solve(list(gaps), load_scale, fields=True, body_load=load, start=start, layers=layers)
         except ContactError as exc:         # the same state as the last step, which was solved
             raise PhysicsError(f"with the spline drag: {exc}") from None
     return DragSolve(fe, drag, plate_torques_Nmm(fe, plates, faces_of, mu), iteration)
