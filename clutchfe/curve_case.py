@@ -33,6 +33,9 @@ CUSHION_TRAVEL_MM = 3.0
 # Pressures a curve may reach: linings are rated up to ~3.5 MPa, sintered ~10 (from memory); a measured curve
 # runs past the rating, but not past 50 MPa, where an organic lining is crushed and a sintered one yields.
 CURVE_PRESSURE_MPA = 50.0
+# A cushion is flat at its last point; below 1e-3 MPa on its facing it would be flat before any clutch is
+# engaged (the least mean pressure of a clutch, case_checks.MEAN_PRESSURE_MPA): a force typed in kN.
+CUSHION_LEAST_MPA = 1e-3
 # The tables need the parametric section's linings and the axisymmetric solve; see check_curve_model.  The
 # spline drag carries the layer (its solves are the case's own with a body load); these analyses do not.
 OTHER_ANALYSES = ("engagement", "wear", "speed")
@@ -94,12 +97,19 @@ def _numbers(key: str, value, problems: list[str]) -> list[float] | None:
         return None
     numbers = []
     for k, item in enumerate(value):
-        if isinstance(item, bool) or not isinstance(item, (int, float)) or not math.isfinite(float(item)):
+        if isinstance(item, bool) or not isinstance(item, (int, float)) or not _finite(item):
             problems.append(f"{key}[{k}] = {shown(item)}: must be a finite number; allowed: a number above the point "
                             "before (the curve rises from (0, 0))")
             return None
         numbers.append(float(item))
     return numbers
+
+
+def _finite(item) -> bool:
+    try:
+        return math.isfinite(float(item))
+    except OverflowError:               # an integer of hundreds of digits
+        return False
 
 
 def _increasing(key: str, numbers: list[float], unit: str, problems: list[str]) -> None:
@@ -142,6 +152,12 @@ def check_curves(curves: dict, v, kind: str, problems: list[str], warnings: list
         r1, r2 = v.get("interface.inner_radius"), v.get("interface.outer_radius")
         if r1 is not None and r2 is not None and r2 > r1:
             area = math.pi * (r2 ** 2 - r1 ** 2)
+            if cushion.values[-1] * f_scale / area < CUSHION_LEAST_MPA:
+                problems.append(f"cushion.force[{len(cushion.values) - 1}] = {cushion.values[-1]:g} (× force_scale "
+                                f"{f_scale:g}): on the facing of {area:.4g} mm² a cushion pressed flat by "
+                                f"{cushion.values[-1] * f_scale / area:.3g} MPa; allowed: at least "
+                                f"{CUSHION_LEAST_MPA * area / f_scale:.4g} N ({CUSHION_LEAST_MPA:g} MPa, the least "
+                                "mean pressure of a clutch; forces are in N, not kN)")
             if cushion.values[-1] * f_scale / area > CURVE_PRESSURE_MPA:
                 problems.append(f"cushion.force[{len(cushion.values) - 1}] = {cushion.values[-1]:g} (× force_scale "
                                 f"{f_scale:g}): on the facing of {area:.4g} mm² that is "
@@ -178,7 +194,8 @@ def _secant_modulus(curve: CurvePoints, thickness: float, scale: float, problems
     for k, (d, p) in enumerate(zip(curve.deflection_mm, curve.values)):
         modulus = p * thickness / (d * scale)
         if not spec.low <= modulus <= spec.high:
-            problems.append(f"lining_curve.deflection[{k}] = {d:g} with pressure {p:g} MPa: the secant modulus "
-                            f"p t / d = {modulus:.4g} MPa on lining.thickness {thickness:g} mm; allowed: "
+            problems.append(f"lining_curve.deflection[{k}] = {d:g} with pressure {p:g} MPa (deflection over pressure "
+                            f"scale {scale:g}): the secant modulus p t / d = {modulus:.4g} MPa on lining.thickness "
+                            f"{thickness:g} mm; allowed: "
                             f"{spec.low:g} ≤ value ≤ {spec.high:g} MPa ({spec.why}; deflections are in mm)")
             return

@@ -22,7 +22,9 @@ to it is damped (halved until f decreases: the Armijo rule, Nocedal & Wright, Nu
 §3.1).  A feasible λ stays feasible along the step (λ ≥ 0 and the balance are convex), so the damping never
 leaves the problem.  The curve is piecewise linear, so once every node's segment of the curve stops
 changing the tangent problem is the problem itself and the step is exact: the method ends in finitely many
-steps (two to six on the demo and test cases).
+steps (two to six on the demo and test cases).  It also ends where a tangent answer already meets the true
+problem's conditions at fem/lcp.py's gap tolerance (a node that sits on a corner of the curve to round-off
+would otherwise flip between the segments on either side).
 
 A straight curve p = k d is the linear layer, C + diag(1 / (k A)) in one linear solve (the first step is the
 answer).
@@ -33,19 +35,27 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .lcp import ContactError, LcpSolution, solve_lcp
+from .lcp import GAP_TOLERANCE, ContactError, LcpSolution, solve_lcp
 
 MAX_STEPS = 60
 # a step is halved at most this many times; the descent is guaranteed, so this is never reached but by round-off
 MAX_HALVINGS = 40
 
 
+# A layer pressed flat (a cushion past its travel: its segments lie on each other) is not rigid: it takes the rest
+# of the load as the steel of its segments would.  Past its last point it goes on SOLID_STIFFENING times stiffer
+# than its last segment (a modelling choice: ~10³ is the ratio of a spring segment's stiffness to the steel
+# under it, order of magnitude, from memory), which keeps the contact problem well posed where the bodies
+# are stiff too.
+SOLID_STIFFENING = 1e3
+
+
 @dataclass(frozen=True)
 class CompressionCurve:
     """Pressure (MPa) against deflection (mm) of a layer, piecewise linear through (0, 0) and the points given,
     pressure strictly increasing; past the last point it goes on with the last segment's slope (the caller
-    reports an operating point there), or, ``solid_past_last``, it is solid there: no further deflection (a
-    cushion pressed flat)."""
+    reports an operating point there), or, ``solid_past_last``, it is pressed flat there: SOLID_STIFFENING times
+    stiffer (a cushion past its travel; one more point at 10³ times the last pressure carries that)."""
 
     deflection_mm: np.ndarray
     pressure_MPa: np.ndarray
@@ -60,6 +70,10 @@ class CompressionCurve:
             raise ValueError("compression curve: as many finite deflections as pressures, at least one point")
         if np.any(np.diff(d) <= 0) or np.any(np.diff(p) <= 0):
             raise ValueError("compression curve: deflection and pressure strictly increasing from (0, 0)")
+        if self.solid_past_last:
+            compliance = (d[-1] - d[-2]) / (p[-1] - p[-2]) / SOLID_STIFFENING
+            far = 1e3 * p[-1]
+            d, p = np.append(d, d[-1] + compliance * (far - p[-1])), np.append(p, far)
         object.__setattr__(self, "deflection_mm", d)
         object.__setattr__(self, "pressure_MPa", p)
 
@@ -69,8 +83,15 @@ class CompressionCurve:
         return cls(np.array([up_to_MPa / stiffness_MPa_per_mm]), np.array([up_to_MPa]))
 
     @property
-    def last_pressure_MPa(self) -> float:
-        return float(self.pressure_MPa[-1])
+    def last_measured_pressure_MPa(self) -> float:
+        """The last point given (before the flat part of a layer pressed flat)."""
+        return float(self.pressure_MPa[-2 if self.solid_past_last else -1])
+
+    @property
+    def largest_stiffness_MPa_per_mm(self) -> float:
+        """The steepest segment's dp/dd over the points given."""
+        n = self.pressure_MPa.size - (1 if self.solid_past_last else 0)
+        return float(np.max(np.diff(self.pressure_MPa[:n]) / np.diff(self.deflection_mm[:n])))
 
     def _segment_of_pressure(self, p):
         return np.clip(np.searchsorted(self.pressure_MPa, p, side="right") - 1, 0, self.pressure_MPa.size - 2)
@@ -78,60 +99,45 @@ class CompressionCurve:
     def _segment_of_deflection(self, d):
         return np.clip(np.searchsorted(self.deflection_mm, d, side="right") - 1, 0, self.deflection_mm.size - 2)
 
-    def _solid(self, p) -> np.ndarray:
-        return self.solid_past_last & (np.asarray(p, float) >= self.pressure_MPa[-1])
-
     def compliance(self, p) -> np.ndarray:
         """dD/dp (mm/MPa) on the segment a pressure lies on (the right-hand one at a corner)."""
-        p = np.asarray(p, float)
-        k = self._segment_of_pressure(p)
-        return np.where(self._solid(p), 0.0, np.diff(self.deflection_mm)[k] / np.diff(self.pressure_MPa)[k])
+        k = self._segment_of_pressure(np.asarray(p, float))
+        return np.diff(self.deflection_mm)[k] / np.diff(self.pressure_MPa)[k]
 
     def deflection(self, p) -> np.ndarray:
         """D(p), mm, for p ≥ 0 (MPa)."""
         p = np.asarray(p, float)
         k = self._segment_of_pressure(p)
-        return np.where(self._solid(p), self.deflection_mm[-1],
-                        self.deflection_mm[k] + (p - self.pressure_MPa[k]) * self.compliance(p))
+        return self.deflection_mm[k] + (p - self.pressure_MPa[k]) * self.compliance(p)
 
     def pressure(self, d) -> np.ndarray:
         """p(d), MPa, for d ≥ 0 (mm)."""
         d = np.asarray(d, float)
         k = self._segment_of_deflection(d)
-        slope = np.diff(self.pressure_MPa)[k] / np.diff(self.deflection_mm)[k]
-        return self.pressure_MPa[k] + (d - self.deflection_mm[k]) * slope
+        return self.pressure_MPa[k] + (d - self.deflection_mm[k]) * self.stiffness(d)
 
     def stiffness(self, d) -> np.ndarray:
         """dp/dd (MPa/mm), the tangent of the curve at a deflection (the right-hand one at a corner)."""
-        d = np.asarray(d, float)
-        k = self._segment_of_deflection(d)
-        slope = np.diff(self.pressure_MPa)[k] / np.diff(self.deflection_mm)[k]
-        return np.where(self.solid_past_last & (d >= self.deflection_mm[-1]), np.inf, slope)
+        k = self._segment_of_deflection(np.asarray(d, float))
+        return np.diff(self.pressure_MPa)[k] / np.diff(self.deflection_mm)[k]
 
     def energy(self, p) -> np.ndarray:
         """Ψ(p) = ∫₀ᵖ D(s) ds (N/mm, per unit area): the complementary energy of the layer."""
         p = np.asarray(p, float)
         k = self._segment_of_pressure(p)
         pieces = 0.5 * (self.deflection_mm[1:] + self.deflection_mm[:-1]) * np.diff(self.pressure_MPa)
-        cumulative = np.concatenate([[0.0], np.cumsum(pieces)])
-        inside = cumulative[k] + 0.5 * (self.deflection_mm[k] + self.deflection(p)) * (p - self.pressure_MPa[k])
-        past = cumulative[-1] + self.deflection_mm[-1] * (p - self.pressure_MPa[-1])
-        return np.where(self._solid(p), past, inside)
+        before = np.concatenate([[0.0], np.cumsum(pieces)])[k]
+        return before + 0.5 * (self.deflection_mm[k] + self.deflection(p)) * (p - self.pressure_MPa[k])
 
     def in_series(self, other: "CompressionCurve") -> "CompressionCurve":
-        """Two layers one on the other carry one pressure and add their deflections (solid where both are)."""
+        """Two layers one on the other carry one pressure and add their deflections (at every corner of either:
+        a flat part is a segment of its own already)."""
         p = np.union1d(self.pressure_MPa, other.pressure_MPa)[1:]
-        if self.solid_past_last != other.solid_past_last:
-            # one goes solid at its last point: one more point past both, so that the last segment (and the
-            # extension past it) is the other's alone
-            p = np.append(p, 2.0 * p[-1])
-        return CompressionCurve(self.deflection(p) + other.deflection(p), p,
-                                self.solid_past_last and other.solid_past_last)
+        return CompressionCurve(self.deflection(p) + other.deflection(p), p)
 
     def scaled(self, deflection_factor: float) -> "CompressionCurve":
         """The same curve with every deflection times a factor (half a cushion on each face of a disc)."""
-        return CompressionCurve(self.deflection_mm[1:] * deflection_factor, self.pressure_MPa[1:],
-                                self.solid_past_last)
+        return CompressionCurve(self.deflection_mm[1:] * deflection_factor, self.pressure_MPa[1:])
 
 
 @dataclass(frozen=True)
@@ -176,9 +182,7 @@ class NodeLayers:
     def segments(self, lam) -> np.ndarray:
         s = np.full(self.size, -1)
         for curve, idx, area in self.groups:
-            p = np.maximum(lam[idx], 0.0) / area
-            # the solid part past the last point is a segment of its own
-            s[idx] = curve._segment_of_pressure(p) + curve._solid(p)
+            s[idx] = curve._segment_of_pressure(np.maximum(lam[idx], 0.0) / area)
         return s
 
     def energy(self, lam) -> float:
@@ -192,8 +196,19 @@ def solve_layered_contact(C, g, B, e, layers: NodeLayers, start=None) -> LayerSo
     if layers.size != g.size:
         raise ValueError(f"layers: one per contact node ({g.size}) expected, got {layers.size}")
 
-    def merit(lam):
-        return float(0.5 * lam @ (C @ lam) + g @ lam) + layers.energy(lam)
+    def residual_ok(sol) -> bool:
+        # the true problem's conditions at a tangent problem's answer, at fem/lcp.py's tolerances: gap ≈ 0 where
+        # closed, ≥ 0 where open (the balance and λ ≥ 0 hold for every tangent answer)
+        w = g + C @ sol.lam + B @ sol.delta + layers.compression(sol.lam)
+        tol = GAP_TOLERANCE * max(np.abs(g).max(initial=0.0), np.abs(layers.compression(sol.lam)).max(initial=0.0),
+                                  np.abs(C).max(initial=0.0) * np.abs(sol.lam).max(initial=0.0), 1e-300)
+        closed = sol.lam > 0
+        return bool(np.all(np.abs(w[closed]) <= tol) and np.all(w[~closed] >= -tol))
+
+    def decrease(lam, step):
+        # f(λ + Δ) − f(λ) written as differences, so that a small decrease is not lost to f's own size
+        quadratic = float(g @ step + lam @ (C @ step) + 0.5 * step @ (C @ step))
+        return quadratic + layers.energy(lam + step) - layers.energy(lam)
 
     lam = np.zeros(g.size)
     closed = start
@@ -202,19 +217,21 @@ def solve_layered_contact(C, g, B, e, layers: NodeLayers, start=None) -> LayerSo
         # the tangent problem: D(λ/A) ≈ D_k + c (λ − λ_k) added to the gap
         shift = layers.compression(lam) - c * lam
         trial = solve_lcp(C + np.diag(c), g + shift, B, e, start=closed)
-        if np.array_equal(layers.segments(trial.lam), layers.segments(lam)):
+        if np.array_equal(layers.segments(trial.lam), layers.segments(lam)) or residual_ok(trial):
             lam = trial.lam
-            break               # the tangent problem was the problem on every node's segment: exact
+            break               # the tangent problem was the problem on every node's segment, or its answer is
         if step == 1:
             lam = trial.lam     # the first iterate is feasible; every later one is a damped step from it
         else:
-            t, f0 = 1.0, merit(lam)
+            t, direction = 1.0, trial.lam - lam
             for _ in range(MAX_HALVINGS):
-                candidate = lam + t * (trial.lam - lam)
-                if merit(candidate) <= f0:
+                if decrease(lam, t * direction) <= 0.0:
                     break
                 t *= 0.5
-            lam = candidate
+            else:               # no descent left at round-off: λ is the answer if it meets the conditions
+                raise ContactError("the compliant layer's Newton steps found no descent (a curve with corners "
+                                   "closer than round-off)")
+            lam = lam + t * direction
         closed = lam > 0
     else:
         raise ContactError(f"the compliant layer did not settle in {MAX_STEPS} Newton steps")

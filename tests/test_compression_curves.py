@@ -20,6 +20,7 @@ from clutchfe.study.spec import study_from_dict
 
 from tests.helpers.case_checks import check_answer, outside, problems_of
 from tests.helpers.data import CONE, PLATE, write_toml
+from tests.helpers.solving import run_quietly
 
 CURVE = {"deflection": [0.01, 0.025, 0.04, 0.05], "pressure": [0.05, 0.2, 0.5, 0.8]}
 CUSHION = {"deflection": [0.15, 0.3, 0.45, 0.55], "force": [1200.0, 3000.0, 5600.0, 8500.0]}
@@ -98,7 +99,8 @@ def test_the_scales_stretch_the_curves_the_solve_uses():
     assert np.allclose(curves.lining.deflection_mm[1:], 1.5 * np.array(CURVE["deflection"]), rtol=1e-15, atol=0)
     assert np.allclose(curves.lining.pressure_MPa[1:], 0.8 * np.array(CURVE["pressure"]), rtol=1e-15, atol=0)
     area = math.pi * (120.0 ** 2 - 80.0 ** 2)
-    assert np.allclose(curves.cushion.pressure_MPa[1:] * area, 1.25 * np.array(CUSHION["force"]), rtol=1e-12, atol=0)
+    # the cushion: its points, then the flat part it gets past the last one (fem.compliant_layer.SOLID_STIFFENING)
+    assert np.allclose(curves.cushion.pressure_MPa[1:-1] * area, 1.25 * np.array(CUSHION["force"]), rtol=1e-12, atol=0)
 
 
 @pytest.mark.parametrize("table, key", [(t, k) for t in ("lining_curve", "cushion") for k in SCHEMA[t]])
@@ -187,3 +189,21 @@ def test_pressure_past_the_last_measured_point_is_a_failed_criterion():
     assert s["pressure_beyond_curve"] is True
     assert "pressure beyond the measured compression curve" in s["failed_criteria"]
     assert any("PAST THE MEASURED CURVE" in w for w in s["warnings"])
+
+
+@pytest.mark.parametrize("table, bad, expected", [
+    ("lining_curve", {"deflection": [10 ** 400], "pressure": [0.1]}, "lining_curve.deflection[0]"),
+    ("cushion", {"deflection": [0.2, 0.4], "force": [1.2, 3.0]}, "cushion.force[1] = 3 (× force_scale 1)"),  # kN
+])
+def test_absurd_curve_numbers_exit_2_without_a_traceback(tmp_path, capsys, table, bad, expected):
+    code, err = check_answer(tmp_path, capsys, with_tables(PLATE, **{table: bad}))
+    assert code == 2 and expected in err and "allowed" in err and "Traceback" not in err, err
+
+
+def test_a_cushion_pressed_flat_at_the_clamp_load_runs_and_says_so(tmp_path):
+    # the usual design: the cushion is flat at the clamp load; no lining curve (the linear lining stays)
+    data = with_tables(PLATE, cushion={"deflection": [0.3, 0.5], "force": [1000.0, 2000.0]}, **QUICK)
+    folder, s, terminal = run_quietly(case_from_dict(data), tmp_path / "flat")
+    assert s["cushion_flat_share"] == 1.0 and math.isfinite(s["curve_tangent_stiffness_at_nominal_MPa_per_mm"])
+    assert any("pressed flat over 100 %" in w for w in s["curve_warnings"])
+    assert s["curve_last_measured_pressure_MPa"] is None and s["pressure_beyond_curve"] is False

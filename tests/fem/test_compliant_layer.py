@@ -6,11 +6,13 @@ convex problem and its optimality conditions (Nocedal & Wright, Numerical Optimi
 """
 from __future__ import annotations
 
+import math
+
 import numpy as np
 import pytest
 
 from clutchfe.fem import ContactSolver
-from clutchfe.fem.compliant_layer import CompressionCurve, NodeLayers, solve_layered_contact
+from clutchfe.fem.compliant_layer import SOLID_STIFFENING, CompressionCurve, NodeLayers, solve_layered_contact
 from clutchfe.fem.lcp import solve_lcp
 from clutchfe.verification.compression import (AREA, FACING, rigid_annulus, straight_curve_is_the_linear_lining,
                                                tangent_stiffness_is_the_slope, uniform_stack_on_the_curve)
@@ -102,13 +104,27 @@ def test_uniform_stack_through_the_contact_solver_reports_the_layer():
     assert np.all(solver.solve(fields=False).interfaces[0].layer_deflection == 0.0)    # no layer, no deflection
 
 
-def test_cushion_pressed_flat_is_solid_past_its_last_point():
-    # a curve solid past its last point adds no deflection there; in series with a lining the lining's slope alone
+def test_cushion_pressed_flat_is_stiff_past_its_last_point():
+    # a curve pressed flat goes on SOLID_STIFFENING times stiffer than its last segment; in series with a lining
+    # the flat cushion adds almost nothing more (springs in series, common practice)
     cushion = CompressionCurve(np.array([0.1, 0.2]), np.array([0.1, 0.3]), solid_past_last=True)
-    assert cushion.deflection(0.5) == 0.2 and cushion.compliance(0.5) == 0.0
+    flat = (0.1 / 0.2) / SOLID_STIFFENING
+    assert abs(cushion.compliance(0.5) - flat) <= 1e-15 and abs(cushion.deflection(0.5) - (0.2 + 0.2 * flat)) <= 1e-15
+    assert cushion.last_measured_pressure_MPa == 0.3 and math.isfinite(cushion.stiffness(0.5))
     both = FACING.in_series(cushion)
-    assert abs(both.compliance(1.0) - FACING.compliance(1.0)) <= 1e-12
-    assert abs(both.deflection(1.0) - (FACING.deflection(1.0) + 0.2)) <= 1e-12
-    # through the solver: rigid stack pressed past the cushion's flat point lands on the lining's curve plus 0.2
+    assert abs(both.compliance(1.0) - FACING.compliance(1.0) - flat) <= 1e-12
+    assert abs(both.deflection(1.0) - (FACING.deflection(1.0) + cushion.deflection(1.0))) <= 1e-12
+    # through the solver: a rigid stack pressed past the cushion's flat point lands on the two curves' sum
     itf = ContactSolver(rigid_annulus()).solve(layers=[both], fields=False).interfaces[0]
-    assert abs(np.mean(itf.layer_deflection) - float(FACING.deflection(W / AREA)) - 0.2) <= 1e-6
+    p = W / AREA
+    assert abs(np.mean(itf.layer_deflection) / (float(FACING.deflection(p)) + float(cushion.deflection(p))) - 1) <= 1e-6
+
+
+@pytest.mark.parametrize("factor", [1.0 - 1e-13, 1.0, 1.0 + 1e-13])
+def test_a_cushion_flat_right_at_the_load_settles(factor):
+    # rigid bodies with a cushion whose flat point is W / A to round-off: every node sits on the corner; the
+    # Newton steps must still end (they stop where a tangent answer meets the true conditions)
+    cushion = CompressionCurve(np.array([0.004, 0.010]), np.array([0.2, factor * W / AREA]), solid_past_last=True)
+    itf = ContactSolver(rigid_annulus()).solve(layers=[cushion], fields=False).interfaces[0]
+    assert abs(np.mean(itf.pressure) / (W / AREA) - 1.0) <= 1e-6
+    assert abs(np.mean(itf.layer_deflection) / 0.010 - 1.0) <= 1e-3

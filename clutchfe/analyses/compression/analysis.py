@@ -65,7 +65,7 @@ class CompressionResult:
         """Share of the faces' area where the cushion is pressed flat (past its last point)."""
         if self.cushion is None:
             return 0.0
-        last = self.cushion.pressure_MPa[-1]
+        last = self.cushion.last_measured_pressure_MPa
         flat = sum(float(np.sum(i.tributary_area[i.pressure >= last])) for i in self.fe_interfaces)
         return flat / sum(float(np.sum(i.tributary_area)) for i in self.fe_interfaces)
 
@@ -102,7 +102,7 @@ def compression_of_case(solved, hand: HandCapacity, torque_fe_Nm: float) -> Comp
         t_bare = torque_of(bare)
         xi_bare = capacity_position(t_bare, hand)
     t_secant = torque_of(secant)
-    last = float(lining.pressure_MPa[-1]) if lining is not None else None
+    last = lining.last_measured_pressure_MPa if lining is not None else None
     return CompressionResult(layer, lining, cushion, [face_point(i, layer) for i in fe.interfaces],
                              list(fe.interfaces), nominal, d_nominal, last, secant, torque_fe_Nm, t_secant,
                              capacity_position(torque_fe_Nm, hand), capacity_position(t_secant, hand),
