@@ -63,7 +63,9 @@ ANALYSIS_ASSUMPTIONS = {
              "No spline friction in this solve: every surface of a pack carries the whole clamp force."),
     "compression": ("Lining and cushion by their measured compression curves: a layer of independent springs "
                     "(Winkler foundation) between the bodies following the curve point by point, the meshed lining a "
-                    "stiff carrier; past the last measured point the curve goes on with its last slope.",
+                    "carrier ten times stiffer than the curve's steepest part (its share taken off the curve); past the "
+                    "lining curve's last point it goes on with its last slope, a cushion past its last point is flat "
+                    "(10³ times stiffer).",
                     "Linear elastic lining (Young's modulus and Poisson's ratio), no cushion springs."),
 }
 

@@ -26,7 +26,7 @@ from ..errors import PhysicsError
 from ..fem import ContactError, ContactSolver, FeModel, FeResult
 from ..fem.tilted import TiltedContactSolver, TiltedResult
 from ..geometry import Section, SectionMesh, build_section, mesh_section
-from .model import LayerCurves, fe_model_of, layer_curves_of
+from .model import LayerCurves, carrier_modulus_of, fe_model_of, layer_curves_of
 
 # The prepared model's force: any positive value serves (the solve is linear in the load
 # at fixed contact); a fixed one keeps results independent of the order samples come in.
@@ -48,8 +48,9 @@ GUIDANCE_CHOICES = ("held", "self_aligning")
 def stiffness_key(case: Case) -> str:
     """Cases with the same key share a mesh and a stiffness: one prepared model serves them."""
     fixed = {k: v for k, v in case.flat().items() if not any(_solve_parameter(k, p) for p in SOLVE_PARAMETERS)}
-    # a measured lining curve makes the meshed lining a stiff carrier (solve/model.py); its points do not matter
-    fixed["lining curve"] = case.lining_curve_points is not None
+    # a measured lining curve makes the meshed lining a carrier whose modulus follows the curve's steepest stiffness
+    # (solve/model.py); the rest of the points do not matter
+    fixed["lining curve carrier"] = carrier_modulus_of(case)
     return hashlib.sha256(json.dumps(fixed, sort_keys=True, default=str).encode()).hexdigest()[:16]
 
 

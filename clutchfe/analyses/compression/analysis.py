@@ -41,6 +41,8 @@ class CompressionResult:
     cushion: CompressionCurve | None    # the cushion's curve as pressure on the facing and its whole deflection
     faces: list[FacePoint]
     fe_interfaces: list             # the case's own interfaces on the curve
+    face_deflections: list          # per interface, every node's compression on the curve (the layer's and the
+                                    # meshed carrier's, solve.model.LayerCurves), mm
     nominal_pressure_MPa: float     # the normal force over the face area: W / A on a plate
     nominal_deflection_mm: float    # the layer's D at it
     last_measured_pressure_MPa: float | None    # of the lining's curve (a cushion past its last point is flat)
@@ -70,11 +72,11 @@ class CompressionResult:
         return flat / sum(float(np.sum(i.tributary_area)) for i in self.fe_interfaces)
 
 
-def face_point(itf, layer: CompressionCurve) -> FacePoint:
+def face_point(itf, layer: CompressionCurve, d: np.ndarray) -> FacePoint:
+    """Where a face works on ``layer`` (as measured), ``d`` its nodes' compression (mm)."""
     closed = itf.in_contact & (itf.tributary_area > 0)
     area = itf.tributary_area
     mean_p = float(np.sum(itf.normal_force) / np.sum(area))
-    d = itf.layer_deflection
     mean_d = float(np.sum(d[closed] * area[closed]) / np.sum(area[closed]))
     return FacePoint(itf.name, mean_p, float(itf.pressure[closed].min()), float(itf.pressure.max()), mean_d,
                      float(d.max()), float(layer.stiffness(mean_d)), float(np.sum(area[closed]) / np.sum(area)))
@@ -84,11 +86,12 @@ def compression_of_case(solved, hand: HandCapacity, torque_fe_Nm: float) -> Comp
     """The solved case (``solve.SolvedCase`` with its layer curves) on its compression curves."""
     fe = solved.fe
     curves = solved.layer_curves
-    layer, lining, cushion = curves.face, curves.lining, curves.cushion
+    # reported on the curve as measured; the solve's layer is that less the carrier's share (solve.model)
+    layer, lining, cushion = curves.face_measured, curves.lining, curves.cushion
     total_area = sum(float(np.sum(i.tributary_area)) for i in fe.interfaces)
     nominal = sum(float(np.sum(i.normal_force)) for i in fe.interfaces) / total_area
     d_nominal = float(layer.deflection(nominal))
-    straight = CompressionCurve.straight(nominal / d_nominal, up_to_MPa=nominal)
+    straight = curves.without_carrier(CompressionCurve.straight(nominal / d_nominal, up_to_MPa=nominal))
     secant = _solve(solved, [straight] * len(fe.interfaces), "with the straight layer through the nominal point")
     moment = sum(float(np.sum(i.normal_force * i.r)) for i in fe.interfaces)
 
@@ -97,14 +100,15 @@ def compression_of_case(solved, hand: HandCapacity, torque_fe_Nm: float) -> Comp
 
     bare = t_bare = xi_bare = None
     if cushion is not None:
-        layers = None if lining is None else [lining] * len(fe.interfaces)
+        layers = None if lining is None else [curves.without_carrier(lining)] * len(fe.interfaces)
         bare = _solve(solved, layers, "without the cushion")
         t_bare = torque_of(bare)
         xi_bare = capacity_position(t_bare, hand)
     t_secant = torque_of(secant)
     last = lining.last_measured_pressure_MPa if lining is not None else None
-    return CompressionResult(layer, lining, cushion, [face_point(i, layer) for i in fe.interfaces],
-                             list(fe.interfaces), nominal, d_nominal, last, secant, torque_fe_Nm, t_secant,
+    deflections = [i.layer_deflection + curves.carrier_deflection(i.pressure) * i.in_contact for i in fe.interfaces]
+    return CompressionResult(layer, lining, cushion, [face_point(i, layer, d) for i, d in zip(fe.interfaces, deflections)],
+                             list(fe.interfaces), deflections, nominal, d_nominal, last, secant, torque_fe_Nm, t_secant,
                              capacity_position(torque_fe_Nm, hand), capacity_position(t_secant, hand),
                              max(float(i.pressure.max()) for i in secant.interfaces), bare, t_bare, xi_bare)
 

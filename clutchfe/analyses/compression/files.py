@@ -13,7 +13,7 @@ from ...output.plots import hand_curves_over, new_figure
 from .analysis import CompressionResult
 
 FILES = ("compression_points.csv", "compression_curve.png")
-POINT_COLUMNS = ("interface", "r_mm", "z_mm", "pressure_MPa", "layer_deflection_mm", "pressure_secant_layer_MPa",
+POINT_COLUMNS = ("interface", "r_mm", "z_mm", "pressure_MPa", "compression_on_curve_mm", "pressure_secant_layer_MPa",
                  "pressure_without_cushion_MPa")
 
 
@@ -23,9 +23,9 @@ def write_points_csv(path: Path, result: CompressionResult, fe) -> None:
     with open(path, "w", newline="", encoding="utf-8") as fh:
         writer = csv.writer(fh)
         writer.writerow(POINT_COLUMNS)
-        for itf in fe.interfaces:
+        for itf, d in zip(fe.interfaces, result.face_deflections):
             for k in np.argsort(itf.r):
-                writer.writerow([itf.name, itf.r[k], itf.z[k], itf.pressure[k], itf.layer_deflection[k],
+                writer.writerow([itf.name, itf.r[k], itf.z[k], itf.pressure[k], d[k],
                                  secant[itf.name].pressure[k], bare[itf.name].pressure[k] if bare else ""])
 
 
@@ -49,9 +49,9 @@ def compression_picture(path: Path, result: CompressionResult, fe, hand):
         ax.plot(um * result.lining.deflection(p), p, "--", color="tab:blue", linewidth=1.0, label="lining alone")
         ax.plot(um * 0.5 * result.cushion.deflection(p), p, "--", color="tab:green", linewidth=1.0,
                 label="half the cushion (one face; flat past its last point)")
-    for itf in fe.interfaces:
+    for itf, d in zip(fe.interfaces, result.face_deflections):
         closed = itf.in_contact
-        ax.plot(um * itf.layer_deflection[closed], itf.pressure[closed], ".", markersize=3, alpha=0.6,
+        ax.plot(um * d[closed], itf.pressure[closed], ".", markersize=3, alpha=0.6,
                 label=f"{itf.name}: every node")
     ax.plot([um * result.nominal_deflection_mm], [result.nominal_pressure_MPa], "r*", markersize=12,
             label="nominal point W/A")
