@@ -64,25 +64,28 @@ def straight_curve_is_the_linear_lining(stiffness_factor: float = 1.0) -> list[C
 
 
 def uniform_stack_on_the_curve(curve: CompressionCurve = FACING) -> list[Check]:
-    """Rigid bodies under a uniform load on a stiffening curve: p = W / A and D(W / A) at every node."""
-    itf = ContactSolver(rigid_annulus()).solve(layers=[curve], fields=False).interfaces[0]
+    """Rigid bodies under a uniform load on a stiffening curve: p = W / A at every node, and the pressed ring moves
+    by D(W / A) (its approach, from the contact solve's balance: not the layer's own report)."""
+    fe = ContactSolver(rigid_annulus()).solve(layers=[curve], fields=False)
+    itf = fe.interfaces[0]
     p = W / AREA
     name = "compression curve: a uniform stack lands on the curve's point for W / A"
     worst_p = itf.pressure[np.argmax(np.abs(itf.pressure - p))]
-    worst_d = itf.layer_deflection[np.argmax(np.abs(itf.layer_deflection - float(FACING.deflection(p))))]
-    # round-off of the dense solves and the rigid bodies' own strain (1e-7 of the layer's): 1e-6
+    # the rigid bodies' own strain is ~2e-6 of the layer's compression (5 mm of 2e8 MPa against the curve): 1e-5
     return [relative(name, "pressure farthest from W / A [MPa]", float(worst_p), p, 1e-6, POINT_SOURCE),
-            relative(name, "deflection farthest from D(W / A) [mm]", float(worst_d), float(FACING.deflection(p)),
-                     1e-6, POINT_SOURCE)]
+            relative(name, "approach of the pressed ring [mm]", abs(fe.rigid_approach["top"]),
+                     float(curve.deflection(p)), 1e-5, POINT_SOURCE)]
 
 
-def tangent_stiffness_is_the_slope(step: float = 1e-4) -> list[Check]:
-    """A load 1e-4 larger moves pressure and deflection along the curve's segment: Δp / Δd is its slope."""
+def tangent_stiffness_is_the_slope(step: float = 1e-4, curve: CompressionCurve = FACING) -> list[Check]:
+    """A load 1e-4 larger moves the pressure and the pressed ring along the curve's segment: Δp over the ring's
+    extra approach is its slope."""
     solver = ContactSolver(rigid_annulus())
-    base = solver.solve(layers=[FACING], fields=False).interfaces[0]
-    more = solver.solve(load_scale=1.0 + step, layers=[FACING], fields=False).interfaces[0]
-    dp = float(np.mean(more.pressure) - np.mean(base.pressure))
-    dd = float(np.mean(more.layer_deflection) - np.mean(base.layer_deflection))
-    slope = float(FACING.stiffness(np.mean(base.layer_deflection)))
+    base = solver.solve(layers=[curve], fields=False)
+    more = solver.solve(load_scale=1.0 + step, layers=[curve], fields=False)
+    dp = float(np.mean(more.interfaces[0].pressure) - np.mean(base.interfaces[0].pressure))
+    dd = abs(more.rigid_approach["top"]) - abs(base.rigid_approach["top"])
+    slope = float(curve.stiffness(abs(base.rigid_approach["top"])))
     name = "compression curve: the tangent stiffness under a small extra load is the curve's slope"
-    return [relative(name, "Δp / Δd [MPa/mm]", dp / dd, slope, 1e-6, SLOPE_SOURCE)]
+    # the bodies' strain as above: 1e-5
+    return [relative(name, "Δp / Δ(approach) [MPa/mm]", dp / dd, slope, 1e-5, SLOPE_SOURCE)]

@@ -11,7 +11,7 @@ import math
 import numpy as np
 import pytest
 
-from clutchfe.fem import ContactSolver
+from clutchfe.fem import ContactSolver, compliant_layer
 from clutchfe.fem.compliant_layer import SOLID_STIFFENING, CompressionCurve, NodeLayers, solve_layered_contact
 from clutchfe.fem.lcp import solve_lcp
 from clutchfe.verification.compression import (AREA, FACING, rigid_annulus, straight_curve_is_the_linear_lining,
@@ -128,3 +128,15 @@ def test_a_cushion_flat_right_at_the_load_settles(factor):
     itf = ContactSolver(rigid_annulus()).solve(layers=[cushion], fields=False).interfaces[0]
     assert abs(np.mean(itf.pressure) / (W / AREA) - 1.0) <= 1e-6
     assert abs(np.mean(itf.layer_deflection) / 0.010 - 1.0) <= 1e-3
+
+
+def test_point_and_slope_rows_catch_a_layer_two_percent_soft(monkeypatch):
+    # the rows read the pressed ring's approach (the solve's balance), not the layer's own report: a layer whose
+    # compression is 2 % more than its curve's fails both (the pressure row passes: balance alone fixes it)
+    true = compliant_layer.NodeLayers.compression
+    monkeypatch.setattr(compliant_layer.NodeLayers, "compression", lambda self, lam: 1.02 * true(self, lam))
+    monkeypatch.setattr(compliant_layer.NodeLayers, "compliance",
+                        lambda self, lam, f=compliant_layer.NodeLayers.compliance: 1.02 * f(self, lam))
+    point = uniform_stack_on_the_curve()
+    assert point[0].passed and not point[1].passed
+    assert not all(r.passed for r in tangent_stiffness_is_the_slope())
