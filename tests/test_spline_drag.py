@@ -93,15 +93,19 @@ def test_no_spline_friction_is_the_pack_without_it_exactly():
     assert all(s.axial_force_N == s.axial_force_without_drag_N for s in pack.surfaces)
 
 
-def test_elastic_pack_keeps_each_plate_in_balance_and_loses_torque():
-    solved, pack = _pack(SPLINED)
+def _assert_every_plate_in_balance(pack):
+    # F_in − F_out = μ_s T / R_s (the plate's balance; the fixed point stops at 1e-10 W)
     W = PACK["load"]["axial_force"]
     forces = [W] + [s.axial_force_N for s in pack.surfaces]
     for j, plate in enumerate(pack.plates):
-        # F_in − F_out = μ_s T / R_s (the plate's balance; the fixed point stops at 1e-10 W)
         drag = plate.friction_coefficient * 1000.0 * plate.torque_Nm / plate.pitch_radius_mm
         assert abs(forces[j] - forces[j + 1] - drag) <= 1e-8 * W
     assert pack.torque_Nm < pack.torque_without_drag_Nm
+
+
+def test_elastic_pack_keeps_each_plate_in_balance_and_loses_torque():
+    solved, pack = _pack(SPLINED)
+    _assert_every_plate_in_balance(pack)
     # every further surface carries less: the drag only holds force back
     assert all(b.axial_force_N < a.axial_force_N for a, b in zip(pack.surfaces, pack.surfaces[1:]))
     # the closed form at R_up to within what the plates' dishing under the drag on their splined edges moves the
@@ -198,10 +202,5 @@ def test_spline_drag_carries_a_measured_lining_curve():
     for a, b in zip(pack.fe.interfaces, solved.fe.interfaces):
         assert np.array_equal(a.normal_force, b.normal_force) and np.any(a.layer_deflection > 0)
     solved, pack = _pack(with_tables(PACK, lining_curve=curve, splines={"friction_coefficient": 0.12}))
-    W = PACK["load"]["axial_force"]
-    forces = [W] + [s.axial_force_N for s in pack.surfaces]
-    for j, plate in enumerate(pack.plates):
-        drag = plate.friction_coefficient * 1000.0 * plate.torque_Nm / plate.pitch_radius_mm
-        assert abs(forces[j] - forces[j + 1] - drag) <= 1e-8 * W
-    assert pack.torque_Nm < pack.torque_without_drag_Nm
+    _assert_every_plate_in_balance(pack)
     assert all(np.any(itf.layer_deflection > 0) for itf in pack.fe.interfaces)
