@@ -43,11 +43,10 @@ OTHER_ANALYSES = ("engagement", "wear", "speed")
 
 @dataclass(frozen=True)
 class CurvePoints:
-    """One measured curve as the case gives it: deflections (mm) and what each carries (MPa or N)."""
+    """One measured curve as the case gives it: deflections (mm) and what each carries (MPa or N, by table)."""
 
     deflection_mm: tuple[float, ...]
     values: tuple[float, ...]
-    unit: str
 
 
 def split_curve_lists(data: dict) -> tuple[dict, dict]:
@@ -83,7 +82,7 @@ def curve_points_of(lists: dict, values, kind: str, problems: list[str]) -> dict
         _increasing(f"{table}.{x}", d, "mm", problems)
         _increasing(f"{table}.{y}", v, unit, problems)
         if len(problems) == before:
-            out[table] = CurvePoints(tuple(d), tuple(v), unit)
+            out[table] = CurvePoints(tuple(d), tuple(v))
     return out
 
 

@@ -125,7 +125,8 @@ SUMMARY_KEYS: tuple[SummaryKey, ...] = (
         ("dofs", "", "number of unknowns (degrees of freedom) of the FE model"),
         ("solve_seconds", "s", "wall time of the FE solve"),
         ("rigid_approach_mm", "mm", "per free body (name → value): its rigid axial translation under load"),
-        ("contact_iterations", "", "iterations the contact solver took"),
+        ("contact_iterations", "", "iterations the contact solver took (with a compression curve: its Newton steps, "
+                                   "each an exact contact solve)"),
         ("mesh", "", "the mesh of the run: nodes, triangles, element_order (1 linear, 2 quadratic)"),
     )),
     *_k("tilt", False, (

@@ -236,11 +236,12 @@ def solve_layered_contact(C, g, B, e, layers: NodeLayers, start=None) -> LayerSo
     else:
         raise ContactError(f"the compliant layer did not settle in {MAX_STEPS} Newton steps")
     # δ and the gap of the final state: the tangent problem at λ is exact there
-    sol = _final_state(C, g, B, e, layers, lam, trial)
+    sol = _final_state(C, g, B, e, layers, lam, trial, step)
     return LayerSolution(sol, layers.compression(sol.lam), step)
 
 
-def _final_state(C, g, B, e, layers, lam, trial) -> LcpSolution:
+def _final_state(C, g, B, e, layers, lam, trial, steps: int) -> LcpSolution:
+    # its iterations are the Newton steps (each an exact contact solve): what the run reports as contact iterations
     d = layers.compression(lam)
     gap = g + C @ lam + B @ trial.delta + d
-    return LcpSolution(lam, trial.delta, np.where(lam > 0, 0.0, gap), trial.iterations, "layer newton")
+    return LcpSolution(lam, trial.delta, np.where(lam > 0, 0.0, gap), steps, "layer newton")

@@ -276,7 +276,7 @@ class ContactSolver:
                 g = g0 + load_scale * self.g_load
                 if extra_load is not None:
                     g = g + self.extra_gap(extra_load)
-                deflection = np.zeros(g.size)
+                deflection = None
                 if layers is not None and any(curve is not None for curve in layers) and g.size:
                     out = solve_layered_contact(self.C, g, self.B, e,
                                                 NodeLayers(list(layers), [f.area for f in self.faces]), start)

@@ -76,6 +76,7 @@ def test_nonlinear_layer_meets_the_contact_conditions():
     assert np.min(w[~closed]) >= -1e-9 * scale
     assert abs(solver.B.T @ lam + solver.e).max() <= 1e-9 * W
     assert out.steps >= 2                                   # the stiffening curve needs more than its tangent
+    assert out.solution.iterations == out.steps             # reported as the solve's contact iterations
     assert np.max(lam / np.where(solver.faces[0].area > 0, solver.faces[0].area, 1.0)) > 0.8   # past a corner
 
 
